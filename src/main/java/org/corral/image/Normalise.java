@@ -1,0 +1,49 @@
+package org.corral.image;
+
+import java.util.Arrays;
+
+/**
+ * Per-image, per-channel percentile normalisation: the low percentile maps to 0 and the high one
+ * to 1 (common practice for microscopy networks, so that exposure and bit depth do not matter).
+ * NaN and infinite pixels are replaced by the low percentile so they cannot poison the network.
+ */
+public final class Normalise {
+	public static final double LOW = 1.0, HIGH = 99.8;
+
+	private Normalise() {}
+
+	public static PlanarImage percentiles(PlanarImage im, double low, double high) {
+		float[][] out = new float[im.nChannels()][];
+		for (int c = 0; c < im.nChannels(); c++) out[c] = channel(im.channels[c], low, high);
+		return new PlanarImage(im.width, im.height, out);
+	}
+
+	public static PlanarImage percentiles(PlanarImage im) {
+		return percentiles(im, LOW, HIGH);
+	}
+
+	static float[] channel(float[] v, double low, double high) {
+		// a strided sample keeps this fast on huge images; percentiles barely move
+		int step = Math.max(1, v.length / 1_000_000);
+		float[] s = new float[(v.length + step - 1) / step];
+		int n = 0;
+		for (int i = 0; i < v.length; i += step) if (Float.isFinite(v[i])) s[n++] = v[i];
+		float lo = 0, hi = 1;
+		if (n > 0) {
+			Arrays.sort(s, 0, n);
+			lo = s[(int) Math.min(n - 1, Math.floor(low / 100 * (n - 1)))];
+			hi = s[(int) Math.min(n - 1, Math.ceil(high / 100 * (n - 1)))];
+			if (hi <= lo) { // flat image, or a sparse one: fall back to the full range
+				lo = s[0];
+				hi = s[n - 1];
+			}
+		}
+		float scale = hi > lo ? 1f / (hi - lo) : 0f;
+		float[] out = new float[v.length];
+		for (int i = 0; i < v.length; i++) {
+			float x = v[i];
+			out[i] = Float.isFinite(x) ? (x - lo) * scale : 0f;
+		}
+		return out;
+	}
+}

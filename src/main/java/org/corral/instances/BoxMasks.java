@@ -1,0 +1,125 @@
+package org.corral.instances;
+
+import java.util.ArrayList;
+import java.util.List;
+
+import org.corral.boxes.Box;
+
+/**
+ * One mask per box from a probability map: inside each box the pixels above the threshold, the
+ * connected component with the most probability mass, holes filled. When a box yields nothing at
+ * the threshold, lower thresholds are tried (down to {@link #MIN_THRESHOLD}). Pixels claimed by
+ * two boxes go to the box whose centre is nearer, measured in units of each box's half-sides, and
+ * each object then keeps its largest piece, so no pixel belongs to two objects.
+ * Label value k is the mask of the k-th box of the list (k = 1..n).
+ */
+public final class BoxMasks {
+	public static final double MIN_THRESHOLD = 0.2;
+
+	private BoxMasks() {}
+
+	/** Per-box quality figures, computed against the box the mask was made for. */
+	public record Fit(int index, Box box, long area, double fill, double rowsCrossed, double columnsCrossed,
+		double meanProbability, List<String> flags) {}
+
+	public record Result(int[] labels, List<Fit> fits) {}
+
+	public static Result make(float[] prob, int w, int h, List<Box> boxes, double threshold) {
+		int n = boxes.size();
+		int[] owner = new int[w * h];
+		double[] ownerDist = new double[w * h];
+		for (int k = 1; k <= n; k++) {
+			Box b = boxes.get(k - 1).clip(w, h);
+			if (b == null) continue;
+			boolean[] m = boxMask(prob, w, b, threshold);
+			double cx = boxes.get(k - 1).centreX() - 0.5, cy = boxes.get(k - 1).centreY() - 0.5;
+			double rx = boxes.get(k - 1).width() / 2.0, ry = boxes.get(k - 1).height() / 2.0;
+			for (int y = 0; y < b.height(); y++)
+				for (int x = 0; x < b.width(); x++) {
+					if (!m[y * b.width() + x]) continue;
+					int i = (y + b.y()) * w + x + b.x();
+					double dx = (x + b.x() - cx) / rx, dy = (y + b.y() - cy) / ry;
+					double d = dx * dx + dy * dy;
+					if (owner[i] == 0 || d < ownerDist[i]) {
+						owner[i] = k;
+						ownerDist[i] = d;
+					}
+				}
+		}
+		// after contested pixels were shared out, an object may be split: keep its largest piece
+		int[] labels = new int[w * h];
+		List<Fit> fits = new ArrayList<>();
+		for (int k = 1; k <= n; k++) {
+			Box orig = boxes.get(k - 1);
+			Box b = orig.clip(w, h);
+			if (b == null) {
+				fits.add(new Fit(k, orig, 0, 0, 0, 0, 0, List.of("outside-image")));
+				continue;
+			}
+			int bw = b.width(), bh = b.height();
+			boolean[] m = new boolean[bw * bh];
+			for (int y = 0; y < bh; y++)
+				for (int x = 0; x < bw; x++) m[y * bw + x] = owner[(y + b.y()) * w + x + b.x()] == k;
+			m = largest(m, bw, bh, null);
+			long area = 0;
+			double psum = 0;
+			boolean[] rows = new boolean[bh], cols = new boolean[bw];
+			for (int y = 0; y < bh; y++)
+				for (int x = 0; x < bw; x++)
+					if (m[y * bw + x]) {
+						int i = (y + b.y()) * w + x + b.x();
+						labels[i] = k;
+						area++;
+						psum += prob[i];
+						rows[y] = true;
+						cols[x] = true;
+					}
+			double rf = count(rows) / (double) bh, cf = count(cols) / (double) bw;
+			double fill = area / (double) b.area();
+			List<String> flags = new ArrayList<>();
+			if (area == 0) flags.add("empty");
+			else {
+				if (fill < 0.25) flags.add("low-fill");
+				if (rf < 0.9 || cf < 0.9) flags.add("misses-sides");
+			}
+			if (b.width() != orig.width() || b.height() != orig.height()) flags.add("clipped");
+			if (orig.touchesBorder(w, h)) flags.add("touches-border");
+			if (Math.min(orig.width(), orig.height()) < 4) flags.add("tiny");
+			fits.add(new Fit(k, orig, area, fill, rf, cf, area > 0 ? psum / area : 0, flags));
+		}
+		return new Result(labels, fits);
+	}
+
+	/** The mask of one box on its own: threshold, best component, holes filled (box coordinates). */
+	static boolean[] boxMask(float[] prob, int w, Box b, double threshold) {
+		int bw = b.width(), bh = b.height();
+		for (double t = threshold; t >= MIN_THRESHOLD - 1e-9; t -= 0.1) {
+			boolean[] m = new boolean[bw * bh];
+			for (int y = 0; y < bh; y++)
+				for (int x = 0; x < bw; x++) m[y * bw + x] = prob[(y + b.y()) * w + x + b.x()] >= t;
+			if (!Components.any(m)) continue;
+			boolean[] best = largest(m, bw, bh, (i) -> prob[(i / bw + b.y()) * w + i % bw + b.x()]);
+			Components.fillHoles(best, bw, bh);
+			return best;
+		}
+		return new boolean[bw * bh];
+	}
+
+	/** The component with the largest weight sum (pixel count when weight is null). */
+	static boolean[] largest(boolean[] m, int w, int h, java.util.function.IntToDoubleFunction weight) {
+		int[] cnt = new int[1];
+		int[] lab = Components.label(m, w, h, cnt);
+		if (cnt[0] <= 1) return m;
+		double[] mass = new double[cnt[0] + 1];
+		for (int i = 0; i < lab.length; i++) if (lab[i] > 0) mass[lab[i]] += weight == null ? 1 : weight.applyAsDouble(i);
+		int best = 1;
+		for (int l = 2; l <= cnt[0]; l++) if (mass[l] > mass[best]) best = l;
+		return Components.only(lab, best);
+	}
+
+	private static int count(boolean[] v) {
+		int n = 0;
+		for (boolean b : v) if (b) n++;
+		return n;
+	}
+}

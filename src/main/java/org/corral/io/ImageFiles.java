@@ -1,0 +1,141 @@
+package org.corral.io;
+
+import ij.IJ;
+import ij.ImagePlus;
+import ij.ImageStack;
+import ij.io.FileSaver;
+import ij.io.Opener;
+import ij.measure.Calibration;
+import ij.process.ColorProcessor;
+import ij.process.ImageProcessor;
+import ij.process.ShortProcessor;
+
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.util.Locale;
+
+import org.corral.CorralException;
+import org.corral.image.PlanarImage;
+
+/** Reading images into {@link PlanarImage}s and writing label images, through ImageJ 1.x file code. */
+public final class ImageFiles {
+	private ImageFiles() {}
+
+	private static final String[] IMAGE_ENDINGS = {".tif", ".tiff", ".png", ".jpg", ".jpeg", ".bmp", ".gif"};
+
+	public static boolean looksLikeImage(Path p) {
+		String n = p.getFileName().toString().toLowerCase(Locale.ROOT);
+		if (n.startsWith(".")) return false;
+		for (String e : IMAGE_ENDINGS) if (n.endsWith(e)) return true;
+		return false;
+	}
+
+	public static String baseName(Path p) {
+		String n = p.getFileName().toString();
+		int dot = n.lastIndexOf('.');
+		return dot > 0 ? n.substring(0, dot) : n;
+	}
+
+	public static ImagePlus open(Path file) {
+		if (!Files.isRegularFile(file)) throw new CorralException("Image " + file + " does not exist");
+		ImagePlus imp;
+		try {
+			IJ.redirectErrorMessages();
+			imp = new Opener().openImage(file.toString());
+		} catch (RuntimeException e) {
+			throw new CorralException("Cannot read image " + file + ": " + e, e);
+		}
+		if (imp == null) throw new CorralException("Cannot read image " + file + " (not an image ImageJ can open, or damaged)");
+		if (imp.getWidth() < 1 || imp.getHeight() < 1) throw new CorralException("Image " + file + " is empty");
+		return imp;
+	}
+
+	public static PlanarImage read(Path file) {
+		return planes(open(file), 1, 1);
+	}
+
+	/** Number of frames (time points, or z slices when there is no time axis) of a stack. */
+	public static int positions(ImagePlus imp) {
+		return imp.getNFrames() > 1 ? imp.getNFrames() : imp.getNSlices();
+	}
+
+	/** The channels of one stack position (1-based z and t) as a float image; RGB gives 3 channels. */
+	public static PlanarImage planes(ImagePlus imp, int z, int t) {
+		int w = imp.getWidth(), h = imp.getHeight();
+		ImageStack st = imp.getStack();
+		int nc = imp.getNChannels();
+		if (imp.getType() == ImagePlus.COLOR_RGB) {
+			ColorProcessor cp = (ColorProcessor) st.getProcessor(imp.getStackIndex(1, z, t));
+			float[][] ch = new float[3][w * h];
+			int[] px = (int[]) cp.getPixels();
+			for (int i = 0; i < px.length; i++) {
+				ch[0][i] = (px[i] >> 16) & 0xff;
+				ch[1][i] = (px[i] >> 8) & 0xff;
+				ch[2][i] = px[i] & 0xff;
+			}
+			return new PlanarImage(w, h, ch);
+		}
+		float[][] ch = new float[nc][];
+		for (int c = 1; c <= nc; c++) {
+			ImageProcessor ip = st.getProcessor(imp.getStackIndex(c, z, t));
+			ch[c - 1] = (float[]) ip.convertToFloatProcessor().getPixels();
+		}
+		return new PlanarImage(w, h, ch);
+	}
+
+	/** Stack position (1-based) to (z, t) for {@link #planes}. */
+	public static int[] zt(ImagePlus imp, int position) {
+		return imp.getNFrames() > 1 ? new int[] {1, position} : new int[] {position, 1};
+	}
+
+	/** A label image as 16-bit (32-bit float when there are more than 65535 labels). */
+	public static ImagePlus labelImage(String title, int[][] labelsPerSlice, int w, int h, Calibration cal) {
+		int max = 0;
+		for (int[] l : labelsPerSlice) for (int v : l) max = Math.max(max, v);
+		ImageStack st = new ImageStack(w, h);
+		for (int[] l : labelsPerSlice) {
+			if (max <= 65535) {
+				short[] s = new short[l.length];
+				for (int i = 0; i < l.length; i++) s[i] = (short) l[i];
+				st.addSlice(new ShortProcessor(w, h, s, null));
+			} else {
+				float[] f = new float[l.length];
+				for (int i = 0; i < l.length; i++) f[i] = l[i];
+				st.addSlice(new ij.process.FloatProcessor(w, h, f));
+			}
+		}
+		ImagePlus imp = new ImagePlus(title, st);
+		if (cal != null) imp.setCalibration(cal.copy());
+		imp.setDisplayRange(0, Math.max(1, max));
+		return imp;
+	}
+
+	public static void saveTiff(ImagePlus imp, Path target) {
+		byte[] bytes = new FileSaver(imp).serialize();
+		if (bytes == null) throw new CorralException("Cannot encode " + imp.getTitle() + " as TIFF");
+		AtomicFiles.write(target, out -> out.write(bytes));
+	}
+
+	public static void savePng(java.awt.image.BufferedImage img, Path target) {
+		AtomicFiles.write(target, out -> javax.imageio.ImageIO.write(img, "png", out));
+	}
+
+	/** Label values of a label image file (first slice), as ints. */
+	public static int[] readLabels(Path file, int[] sizeOut) {
+		ImagePlus imp = open(file);
+		ImageProcessor ip = imp.getProcessor();
+		if (imp.getType() == ImagePlus.COLOR_RGB) throw new CorralException("Label image " + file + " is RGB, not a label image");
+		int n = ip.getWidth() * ip.getHeight();
+		int[] out = new int[n];
+		for (int i = 0; i < n; i++) {
+			float v = ip.getf(i);
+			if (v < 0 || v != Math.rint(v)) throw new CorralException("Label image " + file + " holds the non-label value " + v);
+			out[i] = (int) v;
+		}
+		if (sizeOut != null) {
+			sizeOut[0] = ip.getWidth();
+			sizeOut[1] = ip.getHeight();
+		}
+		return out;
+	}
+}

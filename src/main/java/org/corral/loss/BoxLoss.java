@@ -1,0 +1,122 @@
+package org.corral.loss;
+
+import ai.djl.ndarray.NDArray;
+import ai.djl.ndarray.NDManager;
+import ai.djl.ndarray.index.NDIndex;
+import ai.djl.ndarray.types.Shape;
+import ai.djl.nn.Activation;
+
+import java.util.List;
+
+import org.corral.supervision.Constraint;
+
+/**
+ * The box loss on a batch of crops:
+ * <ul>
+ * <li>background: mean of -log(1 - s) over known-background pixels;</li>
+ * <li>every {@link Constraint} (tightness bands, box-size bound, fill lower bound) through the
+ * log-barrier extension with one shared t ({@link LogBarrier}); band and fill constraints are
+ * averaged per kind, so the weights do not depend on how many boxes a crop holds;</li>
+ * <li>pairwise: neighbouring pixels of similar intensity, one of them in a box, should get the same
+ * label: -log(s_p s_q + (1-s_p)(1-s_q)) (the pairwise affinity loss of "BoxInst: High-Performance
+ * Instance Segmentation with Box Annotations", Tian et al., CVPR 2021).</li>
+ * </ul>
+ * All constraint sums come from one integral image of s, so their cost does not grow with box size.
+ */
+public final class BoxLoss {
+
+	/** The loss and its parts, as scalar NDArrays (the first one carries the gradient). */
+	public record Parts(NDArray total, NDArray background, NDArray constraints, NDArray pairwise, NDArray met, NDArray z) {}
+
+	/** Supervision of a batch as arrays; built once per step in plain Java. */
+	public static final class Targets {
+		final NDArray background, pairH, pairV, corners, target, sign, norm, weight;
+		final int nConstraints;
+
+		/**
+		 * @param background [B,1,H,W] 1 = known background
+		 * @param pairH      [B,1,H,W-1] weights of horizontal pairs
+		 * @param pairV      [B,1,H-1,W] weights of vertical pairs
+		 * @param perCrop    constraints of each crop, in crop coordinates
+		 */
+		public Targets(NDManager m, int b, int h, int w, float[] background, float[] pairH, float[] pairV,
+			List<List<Constraint>> perCrop, LossWeights weights) {
+			this.background = m.create(background, new Shape(b, 1, h, w));
+			this.pairH = m.create(pairH, new Shape(b, 1, h, w - 1));
+			this.pairV = m.create(pairV, new Shape(b, 1, h - 1, w));
+			int n = 0;
+			int nBand = 0, nFill = 0;
+			for (List<Constraint> l : perCrop)
+				for (Constraint c : l) {
+					n++;
+					if (c.kind() == Constraint.Kind.BAND) nBand++;
+					else nFill++;
+				}
+			nConstraints = n;
+			long[] idx = new long[4 * Math.max(1, n)];
+			float[] tg = new float[Math.max(1, n)], sg = new float[Math.max(1, n)], nm = new float[Math.max(1, n)], wt = new float[Math.max(1, n)];
+			java.util.Arrays.fill(nm, 1f);
+			int k = 0;
+			long stride = (long) (h + 1) * (w + 1);
+			for (int bi = 0; bi < perCrop.size(); bi++)
+				for (Constraint c : perCrop.get(bi)) {
+					long base = bi * stride;
+					idx[4 * k] = base + (long) c.y1() * (w + 1) + c.x1();
+					idx[4 * k + 1] = base + (long) c.y0() * (w + 1) + c.x1();
+					idx[4 * k + 2] = base + (long) c.y1() * (w + 1) + c.x0();
+					idx[4 * k + 3] = base + (long) c.y0() * (w + 1) + c.x0();
+					tg[k] = c.target();
+					sg[k] = c.sign();
+					nm[k] = c.norm();
+					wt[k] = (float) (c.kind() == Constraint.Kind.BAND ? weights.band() / nBand : weights.fill() / nFill);
+					k++;
+				}
+			corners = m.create(idx, new Shape(Math.max(1, n), 4));
+			target = m.create(tg);
+			sign = m.create(sg);
+			norm = m.create(nm);
+			weight = m.create(wt);
+		}
+	}
+
+	private BoxLoss() {}
+
+	public static Parts compute(NDArray logits, Targets tg, double t, LossWeights weights) {
+		NDArray s = Activation.sigmoid(logits);
+		// background: -log(1 - sigmoid(x)) = softplus(x), stable for large x
+		NDArray bgCount = tg.background.sum().maximum(1f);
+		NDArray bg = Activation.softPlus(logits).mul(tg.background).sum().div(bgCount);
+
+		// pairwise agreement of similar neighbours
+		NDArray left = s.get(new NDIndex(":, :, :, :-1")), right = s.get(new NDIndex(":, :, :, 1:"));
+		NDArray top = s.get(new NDIndex(":, :, :-1, :")), bottom = s.get(new NDIndex(":, :, 1:, :"));
+		NDArray pairCount = tg.pairH.sum().add(tg.pairV.sum()).maximum(1f);
+		NDArray pair = same(left, right).mul(tg.pairH).sum().add(same(top, bottom).mul(tg.pairV).sum()).div(pairCount);
+
+		NDArray total = bg.add(pair.mul((float) weights.pairwise()));
+		NDArray cons, met, z;
+		if (tg.nConstraints > 0) {
+			Shape sh = s.getShape();
+			long b = sh.get(0), h = sh.get(2), w = sh.get(3);
+			NDArray integral = s.reshape(b, h, w).cumSum(1).cumSum(2).pad(new Shape(1, 0, 1, 0), 0);
+			// a zero row on top and a zero column on the left (pad lists the last axis first)
+			NDArray flat = integral.reshape(-1);
+			NDArray v = flat.take(tg.corners.reshape(-1)).reshape(-1, 4);
+			NDArray sums = v.get(new NDIndex(":, 0")).sub(v.get(new NDIndex(":, 1"))).sub(v.get(new NDIndex(":, 2"))).add(v.get(new NDIndex(":, 3")));
+			z = sums.sub(tg.target).mul(tg.sign).div(tg.norm);
+			cons = LogBarrier.value(z, t).mul(tg.weight).sum();
+			met = z.lte(0f).toType(ai.djl.ndarray.types.DataType.FLOAT32, false).mean();
+			total = total.add(cons);
+		} else {
+			cons = bg.zerosLike();
+			met = bg.onesLike();
+			z = null;
+		}
+		return new Parts(total, bg, cons, pair, met, z);
+	}
+
+	private static NDArray same(NDArray a, NDArray b) {
+		NDArray p = a.mul(b).add(a.neg().add(1f).mul(b.neg().add(1f)));
+		return p.maximum(1e-6f).log().neg();
+	}
+}

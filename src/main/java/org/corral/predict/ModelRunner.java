@@ -1,0 +1,83 @@
+package org.corral.predict;
+
+import ai.djl.ndarray.NDManager;
+
+import java.nio.file.Path;
+import java.util.List;
+import java.util.function.BooleanSupplier;
+
+import org.corral.CorralException;
+import org.corral.boxes.Box;
+import org.corral.image.Normalise;
+import org.corral.image.PlanarImage;
+import org.corral.image.Resample;
+import org.corral.model.ModelFile;
+import org.corral.model.ModelHeader;
+import org.corral.net.UNet;
+
+/**
+ * A loaded model that turns raw images into probability maps: the same normalisation as in
+ * learning, and a rescale so that objects appear at the size the model learned.
+ */
+public final class ModelRunner implements AutoCloseable {
+	/** Rescale only when objects differ from the learned size by more than this factor. */
+	public static final double SCALE_TOLERANCE = 1.25;
+
+	private final ModelHeader header;
+	private final NDManager manager;
+	private final TiledPredictor predictor;
+
+	public ModelRunner(ModelHeader header, UNet net, NDManager manager) {
+		this.header = header;
+		this.manager = manager;
+		this.predictor = new TiledPredictor(net, manager);
+	}
+
+	public static ModelRunner open(Path modelFile) {
+		NDManager m = NDManager.newBaseManager();
+		try {
+			ModelFile.Loaded l = ModelFile.read(modelFile, m);
+			return new ModelRunner(l.header(), l.net(), m);
+		} catch (RuntimeException e) {
+			m.close();
+			throw e;
+		}
+	}
+
+	public ModelHeader header() {
+		return header;
+	}
+
+	/**
+	 * The factor to resize an image by so that objects of median side {@code observed} look like
+	 * the learned ones; 1 when close enough, bounded to [1/4, 4].
+	 */
+	public double scaleFor(double observed) {
+		if (observed <= 0 || header.objectSize <= 0) return 1;
+		double f = header.objectSize / observed;
+		if (f < SCALE_TOLERANCE && f > 1 / SCALE_TOLERANCE) return 1;
+		return Math.max(0.25, Math.min(4, f));
+	}
+
+	public static double medianSide(List<Box> boxes) {
+		double[] v = boxes.stream().mapToDouble(b -> (b.width() + b.height()) / 2.0).sorted().toArray();
+		if (v.length == 0) return 0;
+		return v.length % 2 == 1 ? v[v.length / 2] : (v[v.length / 2 - 1] + v[v.length / 2]) / 2;
+	}
+
+	/** Probability map of a raw image, at the image's own size; {@code scale} from {@link #scaleFor}. */
+	public float[] probability(PlanarImage raw, double scale, BooleanSupplier cancelled) {
+		if (raw.nChannels() != header.inChannels)
+			throw new CorralException("The model was learned on " + header.inChannels + "-channel images; this image has " + raw.nChannels());
+		PlanarImage norm = Normalise.percentiles(raw, header.normLow, header.normHigh);
+		if (scale == 1) return predictor.predict(norm, cancelled);
+		int sw = Math.max(1, (int) Math.round(raw.width * scale)), sh = Math.max(1, (int) Math.round(raw.height * scale));
+		float[] p = predictor.predict(Resample.bilinear(norm, sw, sh), cancelled);
+		return Resample.bilinear(p, sw, sh, raw.width, raw.height);
+	}
+
+	@Override
+	public void close() {
+		manager.close();
+	}
+}

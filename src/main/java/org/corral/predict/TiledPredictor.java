@@ -1,0 +1,83 @@
+package org.corral.predict;
+
+import ai.djl.ndarray.NDArray;
+import ai.djl.ndarray.NDList;
+import ai.djl.ndarray.NDManager;
+import ai.djl.ndarray.types.Shape;
+import ai.djl.pytorch.jni.JniUtils;
+import ai.djl.training.ParameterStore;
+
+import java.util.function.BooleanSupplier;
+
+import org.corral.CorralException;
+import org.corral.image.PlanarImage;
+import org.corral.net.UNet;
+
+/**
+ * Object probability of every pixel of an image of any size, tile by tile: each tile is read with
+ * an overlap of context on every side (mirrored at the image border) and only its centre is kept,
+ * so seams do not show and memory depends on the tile size, not on the image size.
+ */
+public final class TiledPredictor {
+	private final UNet net;
+	private final NDManager manager;
+	private final int tile, overlap;
+
+	public TiledPredictor(UNet net, NDManager manager, int tile, int overlap) {
+		if (tile < 16 || overlap < 0) throw new IllegalArgumentException("tile must be >= 16 and overlap >= 0");
+		this.net = net;
+		this.manager = manager;
+		this.tile = tile;
+		this.overlap = overlap;
+	}
+
+	public TiledPredictor(UNet net, NDManager manager) {
+		this(net, manager, 512, 32);
+	}
+
+	/** Probabilities in [0, 1], raster order. {@code im} must already be normalised. */
+	public float[] predict(PlanarImage im, BooleanSupplier cancelled) {
+		if (im.nChannels() != net.inChannels())
+			throw new CorralException("The model expects " + net.inChannels() + " channel(s), the image has " + im.nChannels());
+		int w = im.width, h = im.height;
+		float[] out = new float[w * h];
+		int m = net.multiple();
+		boolean grad = JniUtils.isGradMode();
+		JniUtils.setGradMode(false);
+		try {
+			for (int ty = 0; ty < h; ty += tile)
+				for (int tx = 0; tx < w; tx += tile) {
+					if (cancelled != null && cancelled.getAsBoolean()) throw new java.util.concurrent.CancellationException("prediction cancelled");
+					int cw = Math.min(tile, w - tx), ch = Math.min(tile, h - ty);
+					int iw = roundUp(cw + 2 * overlap, m), ih = roundUp(ch + 2 * overlap, m);
+					int ox = tx - (iw - cw) / 2, oy = ty - (ih - ch) / 2;
+					float[] in = new float[im.nChannels() * iw * ih];
+					for (int c = 0; c < im.nChannels(); c++) {
+						float[] src = im.channels[c];
+						int base = c * iw * ih;
+						for (int y = 0; y < ih; y++) {
+							int sy = PlanarImage.mirror(oy + y, h);
+							for (int x = 0; x < iw; x++) in[base + y * iw + x] = src[sy * w + PlanarImage.mirror(ox + x, w)];
+						}
+					}
+					try (NDManager sub = manager.newSubManager()) {
+						NDArray x = sub.create(in, new Shape(1, im.nChannels(), ih, iw));
+						NDArray logits = net.forward(new ParameterStore(sub, false), new NDList(x), false).singletonOrThrow();
+						float[] p = ai.djl.nn.Activation.sigmoid(logits).toFloatArray();
+						int dx = tx - ox, dy = ty - oy;
+						for (int y = 0; y < ch; y++)
+							System.arraycopy(p, (y + dy) * iw + dx, out, (ty + y) * w + tx, cw);
+					}
+				}
+		} finally {
+			JniUtils.setGradMode(grad);
+		}
+		return out;
+	}
+
+	static int roundUp(int v, int m) {
+		return (v + m - 1) / m * m;
+	}
+
+	/** Mirror index into [0, n) (edge pixel not repeated); works for any offset. */
+}

@@ -1,0 +1,138 @@
+package org.corral.train;
+
+import java.util.ArrayList;
+import java.util.List;
+import java.util.SplittableRandom;
+
+import org.corral.boxes.Box;
+import org.corral.image.PlanarImage;
+import org.corral.supervision.Constraint;
+import org.corral.supervision.Supervision;
+
+/**
+ * Draws square training crops centred near a random box, with a random flip/90-degree turn and an
+ * intensity jitter, and the crop's supervision: known background cropped from the image's, the
+ * constraints of the boxes that lie wholly inside the crop, and the pairwise weights. Pixels beyond
+ * the image border are mirrored and count as unknown.
+ */
+final class CropSampler {
+	/** One prepared image: normalised pixels, a smoothed copy for the pairwise term, supervision. */
+	record Prepared(String name, PlanarImage image, PlanarImage guide, Supervision sup) {}
+
+	/** One crop, ready for the batch arrays. */
+	record Crop(float[][] channels, float[] background, float[] pairH, float[] pairV, List<Constraint> constraints) {}
+
+	private final List<Prepared> images;
+	private final int[] boxImage, boxIndex;
+	private final int size;
+	private final LearnSettings settings;
+	private final SplittableRandom rnd;
+
+	CropSampler(List<Prepared> images, LearnSettings settings, SplittableRandom rnd) {
+		this.images = images;
+		this.size = settings.crop;
+		this.settings = settings;
+		this.rnd = rnd;
+		int n = 0;
+		for (Prepared p : images) n += p.sup().boxes.size();
+		boxImage = new int[n];
+		boxIndex = new int[n];
+		int k = 0;
+		for (int i = 0; i < images.size(); i++)
+			for (int b = 0; b < images.get(i).sup().boxes.size(); b++) {
+				boxImage[k] = i;
+				boxIndex[k++] = b;
+			}
+	}
+
+	Crop next() {
+		int pick = rnd.nextInt(boxImage.length);
+		Prepared p = images.get(boxImage[pick]);
+		Box centre = p.sup().boxes.get(boxIndex[pick]);
+		int s = size;
+		int ox = (int) Math.round(centre.centreX() - s / 2.0) + rnd.nextInt(-s / 4, s / 4 + 1);
+		int oy = (int) Math.round(centre.centreY() - s / 2.0) + rnd.nextInt(-s / 4, s / 4 + 1);
+		int d = rnd.nextInt(8);
+		int w = p.image().width, h = p.image().height;
+		int nc = p.image().nChannels();
+
+		float[][] ch = new float[nc][s * s];
+		float[][] guide = new float[nc][s * s];
+		float[] bg = new float[s * s];
+		byte[] inBox = new byte[s * s];
+		for (int y = 0; y < s; y++)
+			for (int x = 0; x < s; x++) {
+				int ix = ox + x, iy = oy + y;
+				boolean inside = ix >= 0 && iy >= 0 && ix < w && iy < h;
+				int sx = PlanarImage.mirror(ix, w), sy = PlanarImage.mirror(iy, h);
+				int src = sy * w + sx;
+				int dst = target(d, x, y, s);
+				for (int c = 0; c < nc; c++) {
+					ch[c][dst] = p.image().channels[c][src];
+					guide[c][dst] = p.guide().channels[c][src];
+				}
+				if (inside) {
+					bg[dst] = p.sup().background[src];
+					inBox[dst] = p.sup().inBox[src];
+				}
+			}
+		for (int c = 0; c < nc; c++) { // intensity jitter: gain and offset per channel
+			float gain = (float) Math.exp(rnd.nextDouble(-0.2, 0.2)), off = (float) rnd.nextDouble(-0.1, 0.1);
+			for (int i = 0; i < ch[c].length; i++) ch[c][i] = ch[c][i] * gain + off;
+		}
+		List<Box> inCrop = new ArrayList<>();
+		for (Box b : p.sup().boxes) {
+			int x0 = b.x() - ox, y0 = b.y() - oy;
+			if (x0 < 0 || y0 < 0 || x0 + b.width() > s || y0 + b.height() > s) continue;
+			inCrop.add(transform(d, new Box(b.index(), x0, y0, b.width(), b.height()), s));
+		}
+		List<Constraint> cons = Supervision.builder(s, s).optBand(settings.band).optMargin(settings.margin)
+			.optFill(settings.fillMin, settings.fillMax).build(inCrop).constraints;
+		float[] ph = new float[s * (s - 1)], pv = new float[(s - 1) * s];
+		double tol2 = settings.pairTolerance * settings.pairTolerance * nc;
+		for (int y = 0; y < s; y++)
+			for (int x = 0; x < s; x++) {
+				int i = y * s + x;
+				if (x + 1 < s && (inBox[i] != 0 || inBox[i + 1] != 0) && dist2(guide, i, i + 1) < tol2) ph[y * (s - 1) + x] = 1;
+				if (y + 1 < s && (inBox[i] != 0 || inBox[i + s] != 0) && dist2(guide, i, i + s) < tol2) pv[y * s + x] = 1;
+			}
+		return new Crop(ch, bg, ph, pv, cons);
+	}
+
+	private static double dist2(float[][] g, int i, int j) {
+		double s = 0;
+		for (float[] c : g) {
+			double d = c[i] - c[j];
+			s += d * d;
+		}
+		return s;
+	}
+
+	/** Index in the transformed crop of pixel (x, y): transpose (bit 2), then flip x (bit 0), flip y (bit 1). */
+	static int target(int d, int x, int y, int s) {
+		int tx = x, ty = y;
+		if ((d & 4) != 0) {
+			tx = y;
+			ty = x;
+		}
+		if ((d & 1) != 0) tx = s - 1 - tx;
+		if ((d & 2) != 0) ty = s - 1 - ty;
+		return ty * s + tx;
+	}
+
+	/** The same transform as {@link #target} applied to a box. */
+	static Box transform(int d, Box b, int s) {
+		int x0 = b.x(), y0 = b.y(), x1 = b.x1(), y1 = b.y1();
+		if ((d & 4) != 0) {
+			int t = x0; x0 = y0; y0 = t;
+			t = x1; x1 = y1; y1 = t;
+		}
+		if ((d & 1) != 0) {
+			int t = x0; x0 = s - x1; x1 = s - t;
+		}
+		if ((d & 2) != 0) {
+			int t = y0; y0 = s - y1; y1 = s - t;
+		}
+		return new Box(b.index(), x0, y0, x1 - x0, y1 - y0);
+	}
+}

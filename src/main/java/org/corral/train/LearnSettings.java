@@ -1,0 +1,69 @@
+package org.corral.train;
+
+import org.corral.loss.LossWeights;
+import org.corral.supervision.Supervision.BackgroundMode;
+
+/**
+ * Everything that shapes learning. The defaults are what a user gets without tuning; they were
+ * chosen by measurement on the developer reference sets (README, "How the defaults were chosen").
+ */
+public final class LearnSettings {
+	public int base = 16, levels = 4;
+	public int crop = 128, batch = 8;
+	/** Number of steps; with the same seed and thread count, the same steps give the same model. */
+	public int steps = 400;
+	/** Time budget in minutes (0 = none): when the steps would take longer, the run is shortened to fit. */
+	public double minutes = 5;
+	public double learningRate = 2e-3;
+	public long seed = 1;
+	public int band = 5, margin = 0;
+	public double fillMin = 0.3, fillMax = 0.95;
+	public LossWeights weights = LossWeights.defaults();
+	/** Log-barrier t: from tStart, growing geometrically to tMax over the first tRamp of the steps, then held. */
+	public double tStart = 5, tMax = 30, tRamp = 0.6;
+	/** Two neighbours are "similar" for the pairwise term when their smoothed intensities differ by less. */
+	public double pairTolerance = 0.06;
+	public BackgroundMode background = BackgroundMode.FULL;
+	/** Print/notify progress every this many steps. */
+	public int reportEvery = 10;
+
+	public void validate() {
+		check(base >= 4 && base <= 128, "network width must be 4..128, got " + base);
+		check(levels >= 2 && levels <= 6, "levels must be 2..6, got " + levels);
+		check(crop >= 32 && crop % (1 << (levels - 1)) == 0, "crop must be >= 32 and a multiple of " + (1 << (levels - 1)) + ", got " + crop);
+		check(batch >= 1, "batch must be >= 1");
+		check(steps >= 1, "steps must be at least 1, got " + steps);
+		check(minutes >= 0, "time budget must not be negative");
+		check(band >= 1, "band width w must be >= 1, got " + band);
+		check(margin >= 0, "margin must not be negative, got " + margin);
+		check(fillMin >= 0 && fillMax <= 1 && fillMin <= fillMax, "fill bounds must satisfy 0 <= min <= max <= 1");
+		check(tStart > 0 && tMax >= tStart, "t must start > 0 and tMax >= tStart");
+		check(learningRate > 0, "learning rate must be positive");
+	}
+
+	private static void check(boolean ok, String msg) {
+		if (!ok) throw new org.corral.CorralException("Invalid setting: " + msg);
+	}
+
+	public java.util.Map<String, Object> asMap() {
+		java.util.Map<String, Object> m = new java.util.LinkedHashMap<>();
+		m.put("crop", crop);
+		m.put("batch", batch);
+		m.put("steps", steps);
+		m.put("minutes", minutes);
+		m.put("learningRate", learningRate);
+		m.put("band", band);
+		m.put("margin", margin);
+		m.put("fillMin", fillMin);
+		m.put("fillMax", fillMax);
+		m.put("weightBand", weights.band());
+		m.put("weightFill", weights.fill());
+		m.put("weightPairwise", weights.pairwise());
+		m.put("tStart", tStart);
+		m.put("tMax", tMax);
+		m.put("tRamp", tRamp);
+		m.put("pairTolerance", pairTolerance);
+		m.put("background", background.name());
+		return m;
+	}
+}

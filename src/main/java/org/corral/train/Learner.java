@@ -1,0 +1,202 @@
+package org.corral.train;
+
+import ai.djl.Device;
+import ai.djl.Model;
+import ai.djl.engine.Engine;
+import ai.djl.ndarray.NDArray;
+import ai.djl.ndarray.NDList;
+import ai.djl.ndarray.NDManager;
+import ai.djl.ndarray.types.Shape;
+import ai.djl.nn.Parameter;
+import ai.djl.training.DefaultTrainingConfig;
+import ai.djl.training.GradientCollector;
+import ai.djl.training.Trainer;
+import ai.djl.training.initializer.XavierInitializer;
+import ai.djl.training.loss.Loss;
+import ai.djl.training.optimizer.Optimizer;
+import ai.djl.training.tracker.Tracker;
+
+import java.time.Instant;
+import java.util.ArrayList;
+import java.util.Arrays;
+import java.util.List;
+import java.util.SplittableRandom;
+import java.util.concurrent.CancellationException;
+
+import org.corral.CorralException;
+import org.corral.boxes.Box;
+import org.corral.image.Normalise;
+import org.corral.image.PlanarImage;
+import org.corral.image.Resample;
+import org.corral.loss.BoxLoss;
+import org.corral.model.ModelHeader;
+import org.corral.net.UNet;
+import org.corral.supervision.Supervision;
+
+/**
+ * Learns a {@link UNet} from boxes alone with the {@link BoxLoss}, on the CPU. The schedules (log-
+ * barrier t, learning rate) are fractions of the total number of steps, so a longer budget
+ * stretches them instead of driving t ever higher (which made the plain method collapse).
+ */
+public final class Learner {
+
+	/** The learned network, its header, and the manager that owns its parameters (close it). */
+	public record Result(UNet net, ModelHeader header, NDManager manager, List<Progress.Report> history) implements AutoCloseable {
+		@Override
+		public void close() {
+			manager.close();
+		}
+	}
+
+	private final LearnSettings s;
+
+	public Learner(LearnSettings settings) {
+		settings.validate();
+		this.s = settings;
+	}
+
+	public Result learn(List<TrainingImage> images, Progress progress) {
+		if (images.isEmpty()) throw new CorralException("Nothing to learn from: no images");
+		int nc = images.get(0).image().nChannels();
+		int nBoxes = 0;
+		List<CropSampler.Prepared> prepared = new ArrayList<>();
+		List<Double> sides = new ArrayList<>();
+		for (TrainingImage ti : images) {
+			if (ti.image().nChannels() != nc)
+				throw new CorralException("Image " + ti.name() + " has " + ti.image().nChannels() + " channel(s), the first image " + nc + "; all learning images need the same channels");
+			PlanarImage norm = Normalise.percentiles(ti.image());
+			Supervision sup = Supervision.builder(norm.width, norm.height).optBand(s.band).optMargin(s.margin)
+				.optFill(s.fillMin, s.fillMax).optBackground(ti.region() != null ? Supervision.BackgroundMode.FULL : s.background)
+				.optRegion(ti.region()).build(ti.boxes());
+			if (sup.boxes.isEmpty()) continue;
+			nBoxes += sup.boxes.size();
+			for (Box b : sup.boxes) sides.add((b.width() + b.height()) / 2.0);
+			prepared.add(new CropSampler.Prepared(ti.name(), norm, Resample.mean3(norm), sup));
+		}
+		if (nBoxes == 0) throw new CorralException("Nothing to learn from: none of the " + images.size() + " image(s) has a box inside it");
+
+		Engine.getInstance().setRandomSeed((int) s.seed);
+		SplittableRandom rnd = new SplittableRandom(s.seed);
+		CropSampler sampler = new CropSampler(prepared, s, rnd);
+		UNet net = new UNet(nc, s.base, s.levels);
+		int[] total = {s.steps};
+		boolean shortened = false;
+		Tracker lr = step -> (float) (s.learningRate * lrFactor(step, total[0]));
+		Model model = Model.newInstance("corral");
+		model.setBlock(net);
+		DefaultTrainingConfig cfg = new DefaultTrainingConfig(Loss.l2Loss())
+			.optOptimizer(Optimizer.adam().optLearningRateTracker(lr).build())
+			.optInitializer(new XavierInitializer(XavierInitializer.RandomType.GAUSSIAN, XavierInitializer.FactorType.IN, 2), Parameter.Type.WEIGHT)
+			.optDevices(new Device[] {Device.cpu()});
+		List<Progress.Report> history = new ArrayList<>();
+		boolean done = false;
+		try (Trainer trainer = model.newTrainer(cfg)) {
+			int b = s.batch, c = s.crop;
+			trainer.initialize(new Shape(b, nc, c, c));
+			long start = System.nanoTime(), warm = start;
+			double[] acc = new double[5];
+			int accN = 0;
+			for (int step = 1; step <= total[0]; step++) {
+				if (progress.cancelled()) throw new CancellationException("learning cancelled at step " + step);
+				double t = tAt(step, total[0]);
+				float[] x = new float[b * nc * c * c], bg = new float[b * c * c], ph = new float[b * c * (c - 1)], pv = new float[b * (c - 1) * c];
+				List<List<org.corral.supervision.Constraint>> cons = new ArrayList<>();
+				for (int i = 0; i < b; i++) {
+					CropSampler.Crop cr = sampler.next();
+					for (int ch = 0; ch < nc; ch++) System.arraycopy(cr.channels()[ch], 0, x, (i * nc + ch) * c * c, c * c);
+					System.arraycopy(cr.background(), 0, bg, i * c * c, c * c);
+					System.arraycopy(cr.pairH(), 0, ph, i * c * (c - 1), c * (c - 1));
+					System.arraycopy(cr.pairV(), 0, pv, i * (c - 1) * c, (c - 1) * c);
+					cons.add(cr.constraints());
+				}
+				try (NDManager sm = trainer.getManager().newSubManager(); GradientCollector gc = trainer.newGradientCollector()) {
+					BoxLoss.Targets tg = new BoxLoss.Targets(sm, b, c, c, bg, ph, pv, cons, s.weights);
+					NDArray in = sm.create(x, new Shape(b, nc, c, c));
+					NDArray logits = trainer.forward(new NDList(in)).singletonOrThrow();
+					BoxLoss.Parts p = BoxLoss.compute(logits, tg, t, s.weights);
+					gc.backward(p.total());
+					acc[0] += p.total().getFloat();
+					acc[1] += p.background().getFloat();
+					acc[2] += p.constraints().getFloat();
+					acc[3] += p.pairwise().getFloat();
+					acc[4] += p.met().getFloat();
+					accN++;
+				}
+				trainer.step();
+				double elapsed = (System.nanoTime() - start) / 1e9;
+				if (step == 2) warm = System.nanoTime();
+				if (s.minutes > 0 && step >= 12 && (step - 12) % 25 == 0) {
+					// the time budget is a cap: when the remaining steps will not fit, the run (and with it
+					// the t and learning-rate schedules) is shortened; the header records it
+					double sps = (System.nanoTime() - warm) / 1e9 / (step - 2);
+					int fit = (int) (step + (s.minutes * 60 - elapsed) / sps);
+					if (fit < total[0]) {
+						total[0] = Math.max(step + 1, fit);
+						shortened = true;
+					}
+				}
+				if (step % s.reportEvery == 0 || step == total[0]) {
+					double sps = elapsed / step;
+					Progress.Report r = new Progress.Report(step, total[0], acc[0] / accN, acc[1] / accN, acc[2] / accN, acc[3] / accN,
+						acc[4] / accN, t, sps, sps * (total[0] - step));
+					history.add(r);
+					progress.report(r);
+					Arrays.fill(acc, 0);
+					accN = 0;
+				}
+			}
+			done = true;
+			ModelHeader h = new ModelHeader();
+			h.created = Instant.now().toString();
+			h.inChannels = nc;
+			h.baseChannels = s.base;
+			h.levels = s.levels;
+			h.normLow = Normalise.LOW;
+			h.normHigh = Normalise.HIGH;
+			h.objectSize = median(sides);
+			h.seed = s.seed;
+			h.training = s.asMap();
+			h.counts.put("images", prepared.size());
+			h.counts.put("boxes", nBoxes);
+			h.counts.put("steps", total[0]);
+			h.counts.put("shortenedByTimeBudget", shortened);
+			h.counts.put("secondsPerStep", (System.nanoTime() - start) / 1e9 / total[0]);
+			if (!history.isEmpty()) {
+				Progress.Report last = history.get(history.size() - 1);
+				h.scores.put("loss", last.loss());
+				h.scores.put("background", last.background());
+				h.scores.put("constraints", last.constraints());
+				h.scores.put("pairwise", last.pairwise());
+				h.scores.put("constraintsMet", last.met());
+			}
+			// keep the parameters alive after the trainer closes: move them to a manager we hand out
+			NDManager keep = NDManager.newBaseManager();
+			for (var pair : net.getParameters()) pair.getValue().getArray().attach(keep);
+			return new Result(net, h, keep, history);
+		} finally {
+			if (!done) model.close();
+		}
+	}
+
+	/** Log-barrier t: geometric growth from tStart to tMax over the first tRamp of the run, then held. */
+	double tAt(int step, int total) {
+		double f = Math.min(1, step / (s.tRamp * total));
+		return s.tStart * Math.pow(s.tMax / s.tStart, f);
+	}
+
+	/** Short linear warm-up, then cosine decay to 5 % (common practice). */
+	static double lrFactor(int step, int total) {
+		int warm = Math.max(1, Math.min(20, total / 10));
+		if (step < warm) return (step + 1.0) / warm;
+		double f = Math.min(1, (step - warm) / (double) Math.max(1, total - warm));
+		return 0.05 + 0.95 * 0.5 * (1 + Math.cos(Math.PI * f));
+	}
+
+	static double median(List<Double> v) {
+		if (v.isEmpty()) return 0;
+		List<Double> c = new ArrayList<>(v);
+		c.sort(null);
+		int n = c.size();
+		return n % 2 == 1 ? c.get(n / 2) : (c.get(n / 2 - 1) + c.get(n / 2)) / 2;
+	}
+}

@@ -1,0 +1,97 @@
+package org.corral.workflow;
+
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.util.ArrayList;
+import java.util.LinkedHashMap;
+import java.util.List;
+import java.util.Locale;
+import java.util.Map;
+import java.util.function.Consumer;
+
+import org.corral.CorralException;
+import org.corral.boxes.Box;
+import org.corral.image.PlanarImage;
+import org.corral.instances.BoxMasks;
+import org.corral.io.ImageFiles;
+import org.corral.predict.ModelRunner;
+import org.corral.score.Scores;
+import org.corral.train.LearnSettings;
+import org.corral.train.Learner;
+import org.corral.train.Progress;
+import org.corral.train.TrainingImage;
+
+/**
+ * Learn on the first half of a reference set (images/, labels/, boxes.csv), mask the boxes of the
+ * other half, and score against the reference labels; the same for the box itself and Otsu in the
+ * box. Prints numbers; asserts nothing.
+ */
+public final class Benchmark {
+	private Benchmark() {}
+
+	public record Row(String method, Scores.Tally tally, double learnSeconds, double secondsPerStep, double megapixelsPerSecond) {}
+
+	public static List<Row> run(Path set, LearnSettings settings, int nLearn, Consumer<String> log) {
+		Path images = set.resolve("images"), labels = set.resolve("labels"), boxFile = set.resolve("boxes.csv");
+		if (!Files.isDirectory(images) || !Files.isDirectory(labels) || !Files.isRegularFile(boxFile))
+			throw new CorralException(set + " is not a reference set (needs images/, labels/ and boxes.csv)");
+		Map<Path, List<Box>> all = BoxedImages.find(images, boxFile);
+		List<Path> names = new ArrayList<>(all.keySet());
+		names.sort(null);
+		if (names.size() <= nLearn) throw new CorralException(set + ": needs more than " + nLearn + " boxed images");
+		Map<Path, List<Box>> learn = new LinkedHashMap<>(), test = new LinkedHashMap<>();
+		for (int i = 0; i < names.size(); i++) (i < nLearn ? learn : test).put(names.get(i), all.get(names.get(i)));
+
+		long t0 = System.nanoTime();
+		List<TrainingImage> ti = Jobs.trainingImages(learn);
+		Learner.Result r = new Learner(settings).learn(ti, rep -> {
+			if (rep.step() % 50 == 0 || rep.step() == rep.total())
+				log.accept(String.format(Locale.ROOT, "  step %d/%d loss %.4f bg %.4f cons %.4f pair %.4f met %.3f t %.1f %.2f s/step", rep.step(), rep.total(),
+					rep.loss(), rep.background(), rep.constraints(), rep.pairwise(), rep.met(), rep.t(), rep.secondsPerStep()));
+		});
+		double learnSeconds = (System.nanoTime() - t0) / 1e9;
+		double sps = ((Number) r.header().counts.get("secondsPerStep")).doubleValue();
+		Scores.Tally model = new Scores.Tally(), box = new Scores.Tally(), otsu = new Scores.Tally();
+		double predSeconds = 0;
+		long pixels = 0;
+		try (ModelRunner runner = new ModelRunner(r.header(), r.net(), r.manager())) {
+			for (Map.Entry<Path, List<Box>> e : test.entrySet()) {
+				PlanarImage im = ImageFiles.read(e.getKey());
+				int[] ref = ImageFiles.readLabels(labels.resolve(e.getKey().getFileName()), null);
+				long p0 = System.nanoTime();
+				float[] prob = runner.probability(im, runner.scaleFor(ModelRunner.medianSide(e.getValue())), null);
+				predSeconds += (System.nanoTime() - p0) / 1e9;
+				pixels += im.pixels();
+				model.add(Scores.compare(BoxMasks.make(prob, im.width, im.height, e.getValue(), 0.5).labels(), ref));
+				box.add(Scores.compare(Baselines.boxItself(im, e.getValue()), ref));
+				otsu.add(Scores.compare(Baselines.otsuInBox(im, e.getValue()), ref));
+			}
+		}
+		List<Row> rows = new ArrayList<>();
+		rows.add(new Row("corral", model, learnSeconds, sps, pixels / 1e6 / predSeconds));
+		rows.add(new Row("box itself", box, 0, 0, 0));
+		rows.add(new Row("otsu in box", otsu, 0, 0, 0));
+		return rows;
+	}
+
+	public static String table(String set, List<Row> rows) {
+		StringBuilder sb = new StringBuilder();
+		sb.append(String.format(Locale.ROOT, "%-28s %-12s %8s %8s %8s %8s %8s %9s %8s %8s%n", "set", "method", "objDice", "objIoU", "pixDice", "F1@0.5", "meanAP",
+			"learn_s", "s/step", "MP/s"));
+		for (Row r : rows)
+			sb.append(String.format(Locale.ROOT, "%-28s %-12s %8.4f %8.4f %8.4f %8.4f %8.4f %9.1f %8.3f %8.2f%n", set, r.method(), r.tally().objectDice(),
+				r.tally().objectIoU(), r.tally().pixelDice(), r.tally().f1(0.5), r.tally().meanAP(), r.learnSeconds(), r.secondsPerStep(), r.megapixelsPerSecond()));
+		return sb.toString();
+	}
+
+	/** Peak resident memory of this process (Java heap and native buffers), from /proc; -1 elsewhere. */
+	public static long peakMemoryBytes() {
+		try {
+			for (String l : Files.readAllLines(Path.of("/proc/self/status")))
+				if (l.startsWith("VmHWM:")) return Long.parseLong(l.replaceAll("[^0-9]", "")) * 1024;
+		} catch (Exception e) {
+			// not Linux: unknown
+		}
+		return -1;
+	}
+}
