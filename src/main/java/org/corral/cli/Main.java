@@ -30,6 +30,7 @@ public final class Main {
 		jobs:
 		  learn       a folder of images + their boxes -> a model file
 		  mask-boxes  images + boxes + model -> one mask per box (label TIFF, ROI zip, CSV, PNG)
+		  mask-image  images + model -> every object masked, no boxes needed (and --propose boxes)
 		  score       label images vs reference label images -> score table
 		  demo        the whole job on the bundled demo images
 		  benchmark   learn on half of a reference set, mask the other half, print figures
@@ -105,6 +106,32 @@ public final class Main {
 					Jobs.maskBoxes(boxed, m, out, System.out::println);
 				}
 				return 0;
+			}
+			case "mask-image" -> {
+				if (help) return print("""
+					corral mask-image --images DIR --model FILE --out DIR [--object-size PX] [--propose] [--threads N]
+					  masks every object of every image, no boxes needed: OUT/NAME.tif (one id per object),
+					  OUT/NAME.rois.zip, OUT/NAME.objects.csv (area, mean probability, confidence, flags),
+					  OUT/NAME.overlay.png. Resumable: images already done are skipped.
+					  --object-size PX  typical object side in these images (default: measured in a first pass)
+					  --propose         also write the objects as boxes: OUT/boxes.csv (learner's form) and
+					                    OUT/NAME.boxes.zip, to correct and learn again
+					""");
+				Args a = new Args(job, argv, 1, Set.of("propose"));
+				threads(a);
+				Path images = a.path("images", true), model = a.path("model", true), out = a.path("out", true);
+				double size = a.number("object-size", 0);
+				boolean propose = a.has("propose");
+				a.checkAllUsed();
+				List<Path> files = BoxedImages.images(images);
+				if (files.isEmpty()) throw new CorralException("No images in " + images);
+				AtomicBoolean stop = cancelOnInterrupt();
+				Jobs.FolderReport rep;
+				try (ModelRunner m = ModelRunner.open(model)) {
+					rep = Jobs.maskImages(files, m, out, size, propose, stop::get, System.out::println);
+				}
+				System.out.printf(Locale.ROOT, "%d written, %d skipped (already done), %d failed%n", rep.written(), rep.skipped(), rep.failed().size());
+				return rep.failed().isEmpty() ? 0 : 3;
 			}
 			case "score" -> {
 				if (help) return print("""

@@ -27,6 +27,9 @@ public final class Scores {
 		public long refObjects, predObjects;
 		public long fgIntersection, fgRef, fgPred;
 		public final long[] tp = new long[THRESHOLDS.length];
+		/** Dice summed over the pairs matched at IoU &gt; 0.5, and their number. */
+		public double matchedDiceSum;
+		public long matched;
 
 		public void add(Tally o) {
 			diceSum += o.diceSum;
@@ -37,6 +40,13 @@ public final class Scores {
 			fgRef += o.fgRef;
 			fgPred += o.fgPred;
 			for (int i = 0; i < tp.length; i++) tp[i] += o.tp[i];
+			matchedDiceSum += o.matchedDiceSum;
+			matched += o.matched;
+		}
+
+		/** Mean Dice of the objects matched at IoU &gt; 0.5 (how well found objects are outlined). */
+		public double matchedDice() {
+			return matched == 0 ? Double.NaN : matchedDiceSum / matched;
 		}
 
 		public double objectDice() {
@@ -110,6 +120,10 @@ public final class Scores {
 			if (b == null || o > b[1] || (o == b[1] && p < b[0])) best.put(r, new long[] {p, o});
 			double iou = o / (double) (refArea.get(r) + predArea.get(p) - o);
 			for (int k = 0; k < THRESHOLDS.length; k++) if (iou > THRESHOLDS[k]) t.tp[k]++;
+			if (iou > 0.5) {
+				t.matched++;
+				t.matchedDiceSum += 2.0 * o / (refArea.get(r) + predArea.get(p));
+			}
 		}
 		for (Map.Entry<Integer, Long> e : refArea.entrySet()) {
 			long[] b = best.get(e.getKey());

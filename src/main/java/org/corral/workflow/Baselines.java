@@ -59,4 +59,22 @@ public final class Baselines {
 		}
 		return BoxMasks.make(prob, w, h, boxes, 0.5).labels();
 	}
+
+	/** The classical whole-image baseline: global Otsu threshold, then the distance-transform watershed. */
+	public static int[] otsuWatershed(PlanarImage im, double objectSize) {
+		float[] g = grey(im);
+		float lo = Float.MAX_VALUE, hi = -Float.MAX_VALUE;
+		for (float v : g) {
+			lo = Math.min(lo, v);
+			hi = Math.max(hi, v);
+		}
+		float[] bin = new float[g.length];
+		if (hi > lo) {
+			int[] hist = new int[256];
+			for (float v : g) hist[(int) ((v - lo) / (hi - lo) * 255)]++;
+			int t = new AutoThresholder().getThreshold(AutoThresholder.Method.Otsu, hist);
+			for (int i = 0; i < g.length; i++) bin[i] = (int) ((g[i] - lo) / (hi - lo) * 255) > t ? 1f : 0f;
+		}
+		return org.corral.instances.ImageMasks.make(bin, im.width, im.height, objectSize, 0.5, true).labels();
+	}
 }

@@ -52,6 +52,8 @@ public final class Benchmark {
 		double learnSeconds = (System.nanoTime() - t0) / 1e9;
 		double sps = ((Number) r.header().counts.get("secondsPerStep")).doubleValue();
 		Scores.Tally model = new Scores.Tally(), box = new Scores.Tally(), otsu = new Scores.Tally();
+		Scores.Tally whole = new Scores.Tally(), plainCC = new Scores.Tally(), classical = new Scores.Tally();
+		double wholeSeconds = 0;
 		double predSeconds = 0;
 		long pixels = 0;
 		try (ModelRunner runner = new ModelRunner(r.header(), r.net(), r.manager())) {
@@ -65,22 +67,33 @@ public final class Benchmark {
 				model.add(Scores.compare(BoxMasks.make(prob, im.width, im.height, e.getValue(), 0.5).labels(), ref));
 				box.add(Scores.compare(Baselines.boxItself(im, e.getValue()), ref));
 				otsu.add(Scores.compare(Baselines.otsuInBox(im, e.getValue()), ref));
+				// no boxes: the whole image
+				long w0 = System.nanoTime();
+				WholeImage.Outcome o = WholeImage.mask(runner, im, 0);
+				wholeSeconds += (System.nanoTime() - w0) / 1e9;
+				whole.add(Scores.compare(o.result().labels(), ref));
+				double size = r.header().objectSize / o.scale();
+				plainCC.add(Scores.compare(org.corral.instances.ImageMasks.make(o.probability(), im.width, im.height, size, 0.5, false).labels(), ref));
+				classical.add(Scores.compare(Baselines.otsuWatershed(im, r.header().objectSize), ref));
 			}
 		}
 		List<Row> rows = new ArrayList<>();
 		rows.add(new Row("corral", model, learnSeconds, sps, pixels / 1e6 / predSeconds));
 		rows.add(new Row("box itself", box, 0, 0, 0));
 		rows.add(new Row("otsu in box", otsu, 0, 0, 0));
+		rows.add(new Row("whole image", whole, 0, 0, pixels / 1e6 / wholeSeconds));
+		rows.add(new Row("prob+CC", plainCC, 0, 0, 0));
+		rows.add(new Row("otsu+wshed", classical, 0, 0, 0));
 		return rows;
 	}
 
 	public static String table(String set, List<Row> rows) {
 		StringBuilder sb = new StringBuilder();
-		sb.append(String.format(Locale.ROOT, "%-28s %-12s %8s %8s %8s %8s %8s %9s %8s %8s%n", "set", "method", "objDice", "objIoU", "pixDice", "F1@0.5", "meanAP",
+		sb.append(String.format(Locale.ROOT, "%-28s %-12s %8s %8s %8s %8s %8s %8s %9s %8s %8s%n", "set", "method", "objDice", "objIoU", "pixDice", "F1@0.5", "meanAP", "mDice",
 			"learn_s", "s/step", "MP/s"));
 		for (Row r : rows)
-			sb.append(String.format(Locale.ROOT, "%-28s %-12s %8.4f %8.4f %8.4f %8.4f %8.4f %9.1f %8.3f %8.2f%n", set, r.method(), r.tally().objectDice(),
-				r.tally().objectIoU(), r.tally().pixelDice(), r.tally().f1(0.5), r.tally().meanAP(), r.learnSeconds(), r.secondsPerStep(), r.megapixelsPerSecond()));
+			sb.append(String.format(Locale.ROOT, "%-28s %-12s %8.4f %8.4f %8.4f %8.4f %8.4f %8.4f %9.1f %8.3f %8.2f%n", set, r.method(), r.tally().objectDice(),
+				r.tally().objectIoU(), r.tally().pixelDice(), r.tally().f1(0.5), r.tally().meanAP(), r.tally().matchedDice(), r.learnSeconds(), r.secondsPerStep(), r.megapixelsPerSecond()));
 		return sb.toString();
 	}
 

@@ -161,4 +161,82 @@ public final class Jobs {
 		}
 		if (!Files.isWritable(dir)) throw new CorralException("Output folder " + dir + " is not writable");
 	}
+
+	/** What a folder run did: images written, skipped because already done, and failures by name. */
+	public record FolderReport(int written, int skipped, Map<String, String> failed) {}
+
+	/**
+	 * Masks every object of every image of a folder (no boxes). Resumable: an image whose outputs
+	 * all exist is skipped; outputs are written atomically, the label image last, so an image only
+	 * counts as done when it is complete. A failing image is reported and the others go on. With
+	 * {@code propose}, the objects are also written as boxes ({@code OUT/boxes.csv} in the form the
+	 * learner reads, and {@code OUT/NAME.boxes.zip} rectangles) for the user to correct and learn again.
+	 */
+	public static FolderReport maskImages(List<Path> images, ModelRunner model, Path outDir, double objectSize, boolean propose,
+		java.util.function.BooleanSupplier cancelled, Consumer<String> log) {
+		mkdirs(outDir);
+		int written = 0, skipped = 0;
+		Map<String, String> failed = new java.util.LinkedHashMap<>();
+		StringBuilder proposals = new StringBuilder("image,x,y,width,height,confidence\n");
+		for (Path img : images) {
+			if (cancelled != null && cancelled.getAsBoolean()) throw new java.util.concurrent.CancellationException("folder run cancelled; finished images are complete, run again to resume");
+			String base = ImageFiles.baseName(img);
+			Path label = outDir.resolve(base + ".tif");
+			boolean done = Files.isRegularFile(label) && Files.isRegularFile(outDir.resolve(base + ".objects.csv")) && Files.isRegularFile(outDir.resolve(base + ".rois.zip"))
+				&& (!propose || Files.isRegularFile(outDir.resolve(base + ".boxes.zip")));
+			if (done && !propose) {
+				skipped++;
+				log.accept(img.getFileName() + ": already done, skipped");
+				continue;
+			}
+			try {
+				long t0 = System.nanoTime();
+				ImagePlus imp = ImageFiles.open(img);
+				int n = ImageFiles.positions(imp), w = imp.getWidth(), h = imp.getHeight();
+				int[][] labels = new int[n][];
+				List<Roi> rois = new ArrayList<>(), rects = new ArrayList<>();
+				StringBuilder csv = new StringBuilder("object,slice,x,y,width,height,area,mean_probability,confidence,flags\n");
+				PlanarImage first = null;
+				int total = 0;
+				for (int p = 1; p <= n; p++) {
+					int[] zt = ImageFiles.zt(imp, p);
+					PlanarImage raw = ImageFiles.planes(imp, zt[0], zt[1]);
+					if (first == null) first = raw;
+					WholeImage.Outcome o = WholeImage.mask(model, raw, objectSize);
+					int[] lab = o.result().labels();
+					for (int i = 0; i < lab.length; i++) if (lab[i] > 0) lab[i] += total; // ids unique across the stack
+					labels[p - 1] = lab;
+					String[] names = new String[total + o.result().count()];
+					for (org.corral.instances.ImageMasks.ObjectInfo oi : o.result().objects()) {
+						int id = oi.label() + total;
+						names[id - 1] = String.format(Locale.ROOT, "object-%04d", id);
+						csv.append(String.format(Locale.ROOT, "%d,%d,%d,%d,%d,%d,%d,%.4f,%.4f,%s%n", id, p, oi.x(), oi.y(), oi.width(), oi.height(), oi.area(),
+							oi.meanProbability(), oi.confidence(), String.join(";", oi.flags())));
+						Roi r = new Roi(oi.x(), oi.y(), oi.width(), oi.height());
+						r.setName(String.format(Locale.ROOT, "proposed-%04d", id));
+						if (n > 1) r.setPosition(p);
+						rects.add(r);
+						proposals.append(String.format(Locale.ROOT, "%s,%d,%d,%d,%d,%.4f%n", img.getFileName(), oi.x(), oi.y(), oi.width(), oi.height(), oi.confidence()));
+					}
+					for (Roi r : RoiSets.outlines(lab, w, h, names.length, names)) if (r != null) {
+						if (n > 1) r.setPosition(p);
+						rois.add(r);
+					}
+					total += o.result().count();
+				}
+				RoiSets.writeZip(outDir.resolve(base + ".rois.zip"), rois);
+				AtomicFiles.writeString(outDir.resolve(base + ".objects.csv"), csv.toString());
+				if (propose) RoiSets.writeZip(outDir.resolve(base + ".boxes.zip"), rects);
+				if (first != null) ImageFiles.savePng(Overlays.outlines(first, labels[0]), outDir.resolve(base + ".overlay.png"));
+				ImageFiles.saveTiff(ImageFiles.labelImage(base, labels, w, h, imp.getCalibration()), label); // last: marks the image done
+				written++;
+				log.accept(String.format(Locale.ROOT, "%s: %d objects in %.2f s", img.getFileName(), total, (System.nanoTime() - t0) / 1e9));
+			} catch (CorralException | java.io.UncheckedIOException | IllegalArgumentException e) {
+				failed.put(img.getFileName().toString(), e.getMessage());
+				log.accept(img.getFileName() + ": FAILED: " + e.getMessage());
+			}
+		}
+		if (propose) AtomicFiles.writeString(outDir.resolve("boxes.csv"), proposals.toString());
+		return new FolderReport(written, skipped, failed);
+	}
 }

@@ -1,0 +1,113 @@
+package org.corral.instances;
+
+import ij.plugin.filter.EDM;
+import ij.plugin.filter.GaussianBlur;
+import ij.plugin.filter.MaximumFinder;
+import ij.process.ByteProcessor;
+import ij.process.FloatProcessor;
+import ij.process.ImageProcessor;
+
+import java.util.ArrayList;
+import java.util.List;
+
+/**
+ * Instances on an image without boxes: threshold the probability map, then split touching objects
+ * with a seeded watershed on the distance transform (the classic binary watershed, after Vincent
+ * and Soille, "Watersheds in digital spaces", IEEE PAMI 1991; seeds = distance maxima that stand
+ * out by more than a prominence), using ImageJ's EDM and MaximumFinder. Objects far smaller than
+ * the learned object size are dropped as specks.
+ */
+public final class ImageMasks {
+	private ImageMasks() {}
+
+	/** One object of a whole-image result, with quality figures and flags. */
+	public record ObjectInfo(int label, int x, int y, int width, int height, long area, double meanProbability, double confidence,
+		List<String> flags) {}
+
+	public record Result(int[] labels, int count, List<ObjectInfo> objects) {}
+
+	/**
+	 * @param objectSize typical object side in pixels (the learned median box side); sets the
+	 *                   watershed's prominence and the speck size. 0 = unknown (defaults used).
+	 * @param split      false = plain connected components, no watershed
+	 */
+	public static Result make(float[] prob, int w, int h, double objectSize, double threshold, boolean split) {
+		ByteProcessor bin = new ByteProcessor(w, h);
+		for (int i = 0; i < prob.length; i++) if (prob[i] >= threshold) bin.set(i, 255);
+		boolean[] mask = new boolean[w * h];
+		for (int i = 0; i < mask.length; i++) mask[i] = bin.get(i) != 0;
+		Components.fillHoles(mask, w, h);
+		int[] cnt = new int[1];
+		int[] lab;
+		double size = objectSize > 0 ? objectSize : 20;
+		if (split) {
+			for (int i = 0; i < mask.length; i++) bin.set(i, mask[i] ? 255 : 0);
+			FloatProcessor edm = new EDM().makeFloatEDM(bin, 0, false);
+			new GaussianBlur().blurGaussian(edm, 1.0, 1.0, 0.01); // tames pixel-level ridges
+			double prominence = Math.max(0.7, 0.06 * size);
+			ByteProcessor seg = new MaximumFinder().findMaxima(edm, prominence, ImageProcessor.NO_THRESHOLD, MaximumFinder.SEGMENTED, false, true);
+			boolean[] cells = new boolean[w * h];
+			for (int i = 0; i < cells.length; i++) cells[i] = mask[i] && seg.get(i) != 0;
+			lab = Components.label(cells, w, h, cnt);
+			reclaimLines(lab, mask, w, h);
+		} else lab = Components.label(mask, w, h, cnt);
+		// drop specks: far below the area of a typical object
+		double minArea = Math.max(4, 0.08 * Math.PI / 4 * size * size);
+		long[] area = Components.sizes(lab, cnt[0]);
+		int[] remap = new int[cnt[0] + 1];
+		int n = 0;
+		for (int l = 1; l <= cnt[0]; l++) remap[l] = area[l] >= minArea ? ++n : 0;
+		for (int i = 0; i < lab.length; i++) lab[i] = remap[lab[i]];
+		return new Result(lab, n, describe(lab, n, prob, w, h, size));
+	}
+
+	/** Watershed lines are one pixel wide: give each line pixel of the mask to a neighbouring object. */
+	static void reclaimLines(int[] lab, boolean[] mask, int w, int h) {
+		for (int pass = 0; pass < 2; pass++)
+			for (int y = 0; y < h; y++)
+				for (int x = 0; x < w; x++) {
+					int i = y * w + x;
+					if (!mask[i] || lab[i] != 0) continue;
+					int best = 0;
+					if (x > 0 && lab[i - 1] > 0) best = lab[i - 1];
+					else if (y > 0 && lab[i - w] > 0) best = lab[i - w];
+					else if (x < w - 1 && lab[i + 1] > 0) best = lab[i + 1];
+					else if (y < h - 1 && lab[i + w] > 0) best = lab[i + w];
+					lab[i] = best;
+				}
+	}
+
+	static List<ObjectInfo> describe(int[] lab, int n, float[] prob, int w, int h, double size) {
+		int[] x0 = new int[n + 1], y0 = new int[n + 1], x1 = new int[n + 1], y1 = new int[n + 1];
+		long[] area = new long[n + 1];
+		double[] psum = new double[n + 1];
+		java.util.Arrays.fill(x0, Integer.MAX_VALUE);
+		java.util.Arrays.fill(y0, Integer.MAX_VALUE);
+		for (int y = 0; y < h; y++)
+			for (int x = 0; x < w; x++) {
+				int l = lab[y * w + x];
+				if (l == 0) continue;
+				area[l]++;
+				psum[l] += prob[y * w + x];
+				x0[l] = Math.min(x0[l], x);
+				y0[l] = Math.min(y0[l], y);
+				x1[l] = Math.max(x1[l], x);
+				y1[l] = Math.max(y1[l], y);
+			}
+		double typical = Math.PI / 4 * size * size;
+		List<ObjectInfo> out = new ArrayList<>();
+		for (int l = 1; l <= n; l++) {
+			int bw = x1[l] - x0[l] + 1, bh = y1[l] - y0[l] + 1;
+			double mean = psum[l] / area[l];
+			double fill = area[l] / (double) (bw * bh);
+			List<String> flags = new ArrayList<>();
+			if (x0[l] == 0 || y0[l] == 0 || x1[l] == w - 1 || y1[l] == h - 1) flags.add("touches-border");
+			if (area[l] > 2.2 * typical || (fill < 0.55 && area[l] > 0.8 * typical)) flags.add("may-be-two-objects");
+			if (area[l] < 0.25 * typical) flags.add("tiny");
+			// confidence (ours): how sure the network is, lowered for shapes unlike a single object
+			double conf = Math.max(0, Math.min(1, (mean - 0.5) * 2)) * (flags.contains("may-be-two-objects") ? 0.5 : 1);
+			out.add(new ObjectInfo(l, x0[l], y0[l], bw, bh, area[l], mean, conf, flags));
+		}
+		return out;
+	}
+}
