@@ -40,16 +40,20 @@ public final class Jobs {
 
 	public static List<TrainingImage> trainingImages(Map<Path, List<Box>> boxed) {
 		List<TrainingImage> out = new ArrayList<>();
-		for (Map.Entry<Path, List<Box>> e : boxed.entrySet()) {
-			ImagePlus imp = ImageFiles.open(e.getKey());
-			int n = ImageFiles.positions(imp);
-			for (int p = 1; p <= n; p++) {
-				List<Box> bs = boxesAt(e.getValue(), p, n);
-				if (bs.isEmpty()) continue;
-				int[] zt = ImageFiles.zt(imp, p);
-				String name = e.getKey().getFileName() + (n > 1 ? " position " + p : "");
-				out.add(new TrainingImage(name, ImageFiles.planes(imp, zt[0], zt[1]), bs));
-			}
+		for (Map.Entry<Path, List<Box>> e : boxed.entrySet())
+			out.addAll(trainingImages(ImageFiles.open(e.getKey()), e.getKey().getFileName().toString(), e.getValue(), null));
+		return out;
+	}
+
+	/** One training image per stack position that holds boxes; {@code region} = annotated region or null. */
+	public static List<TrainingImage> trainingImages(ImagePlus imp, String name, List<Box> boxes, byte[] region) {
+		List<TrainingImage> out = new ArrayList<>();
+		int n = ImageFiles.positions(imp);
+		for (int p = 1; p <= n; p++) {
+			List<Box> bs = boxesAt(boxes, p, n);
+			if (bs.isEmpty()) continue;
+			int[] zt = ImageFiles.zt(imp, p);
+			out.add(new TrainingImage(name + (n > 1 ? " position " + p : ""), ImageFiles.planes(imp, zt[0], zt[1]), bs, region));
 		}
 		return out;
 	}
@@ -64,65 +68,92 @@ public final class Jobs {
 		return r;
 	}
 
+	/** Label images (one per stack position), per-box fits, and the first masked plane for pictures. */
+	public record BoxMaskOutcome(int[][] labels, BoxMasks.Fit[] fits, PlanarImage shown) {}
+
+	/** Masks the boxes of one image (all stack positions); label k = the k-th box of {@code all}. */
+	public static BoxMaskOutcome maskBoxes(ImagePlus imp, List<Box> all, ModelRunner model) {
+		int n = ImageFiles.positions(imp);
+		int w = imp.getWidth(), h = imp.getHeight();
+		int[][] labels = new int[n][];
+		BoxMasks.Fit[] fits = new BoxMasks.Fit[all.size()];
+		PlanarImage first = null;
+		for (int p = 1; p <= n; p++) {
+			List<Box> bs = boxesAt(all, p, n);
+			labels[p - 1] = new int[w * h];
+			if (bs.isEmpty()) continue;
+			int[] zt = ImageFiles.zt(imp, p);
+			PlanarImage raw = ImageFiles.planes(imp, zt[0], zt[1]);
+			if (first == null) first = raw;
+			float[] prob = model.probability(raw, model.scaleFor(ModelRunner.medianSide(bs)), null);
+			BoxMasks.Result r = BoxMasks.make(prob, w, h, bs, 0.5);
+			int[] global = new int[bs.size()];
+			for (int k = 0; k < bs.size(); k++) {
+				global[k] = all.indexOf(bs.get(k)) + 1; // label value = position in the image's box list
+				BoxMasks.Fit f = r.fits().get(k);
+				fits[global[k] - 1] = new BoxMasks.Fit(global[k], bs.get(k), f.area(), f.fill(), f.rowsCrossed(), f.columnsCrossed(), f.meanProbability(), f.flags());
+			}
+			int[] lab = r.labels();
+			for (int i = 0; i < lab.length; i++) if (lab[i] > 0) labels[p - 1][i] = global[lab[i] - 1];
+		}
+		for (int k = 0; k < fits.length; k++)
+			if (fits[k] == null) fits[k] = new BoxMasks.Fit(k + 1, all.get(k), 0, 0, 0, 0, 0, List.of("no-such-slice"));
+		return new BoxMaskOutcome(labels, fits, first);
+	}
+
 	/** Masks the boxes of every image; writes label TIFF, ROI zip, per-box CSV and overlay PNG. */
 	public static void maskBoxes(Map<Path, List<Box>> boxed, ModelRunner model, Path outDir, Consumer<String> log) {
 		mkdirs(outDir);
 		for (Map.Entry<Path, List<Box>> e : boxed.entrySet()) {
 			long t0 = System.nanoTime();
 			ImagePlus imp = ImageFiles.open(e.getKey());
-			int n = ImageFiles.positions(imp);
-			int w = imp.getWidth(), h = imp.getHeight();
-			List<Box> all = e.getValue();
-			int[][] labels = new int[n][];
-			BoxMasks.Fit[] fits = new BoxMasks.Fit[all.size()];
-			PlanarImage first = null;
-			for (int p = 1; p <= n; p++) {
-				List<Box> bs = boxesAt(all, p, n);
-				labels[p - 1] = new int[w * h];
-				if (bs.isEmpty()) continue;
-				int[] zt = ImageFiles.zt(imp, p);
-				PlanarImage raw = ImageFiles.planes(imp, zt[0], zt[1]);
-				if (first == null) first = raw;
-				float[] prob = model.probability(raw, model.scaleFor(ModelRunner.medianSide(bs)), null);
-				BoxMasks.Result r = BoxMasks.make(prob, w, h, bs, 0.5);
-				for (int k = 0; k < bs.size(); k++) {
-					int global = all.indexOf(bs.get(k)) + 1; // label value = position in the image's box list
-					BoxMasks.Fit f = r.fits().get(k);
-					fits[global - 1] = new BoxMasks.Fit(global, bs.get(k), f.area(), f.fill(), f.rowsCrossed(), f.columnsCrossed(), f.meanProbability(), f.flags());
-				}
-				int[] lab = r.labels();
-				for (int i = 0; i < lab.length; i++) if (lab[i] > 0) labels[p - 1][i] = all.indexOf(bs.get(lab[i] - 1)) + 1;
-			}
-			String base = ImageFiles.baseName(e.getKey());
-			writeOutputs(outDir, base, imp, labels, all, fits, first);
-			log.accept(String.format(Locale.ROOT, "%s: %d boxes masked in %.2f s", e.getKey().getFileName(), all.size(), (System.nanoTime() - t0) / 1e9));
+			BoxMaskOutcome o = maskBoxes(imp, e.getValue(), model);
+			writeOutputs(outDir, ImageFiles.baseName(e.getKey()), imp, o.labels(), e.getValue(), o.fits(), o.shown());
+			log.accept(String.format(Locale.ROOT, "%s: %d boxes masked in %.2f s", e.getKey().getFileName(), e.getValue().size(), (System.nanoTime() - t0) / 1e9));
 		}
 	}
 
-	static void writeOutputs(Path outDir, String base, ImagePlus imp, int[][] labels, List<Box> boxes, BoxMasks.Fit[] fits, PlanarImage shown) {
-		int w = imp.getWidth(), h = imp.getHeight();
+	/** Outline ROIs of box masks, named after their boxes so each leads back to its box. */
+	public static List<Roi> boxOutlines(int[][] labels, int w, int h, List<Box> boxes) {
 		List<Roi> rois = new ArrayList<>();
 		String[] names = new String[boxes.size()];
 		for (int k = 0; k < boxes.size(); k++) names[k] = String.format(Locale.ROOT, "mask-%04d-of-%s", k + 1, boxes.get(k).name());
-		for (int p = 0; p < labels.length; p++) {
-			Roi[] r = RoiSets.outlines(labels[p], w, h, boxes.size(), names);
-			for (Roi roi : r) if (roi != null) {
+		for (int p = 0; p < labels.length; p++)
+			for (Roi roi : RoiSets.outlines(labels[p], w, h, boxes.size(), names)) if (roi != null) {
 				if (labels.length > 1) roi.setPosition(p + 1);
 				rois.add(roi);
 			}
-		}
-		StringBuilder csv = new StringBuilder("box,name,x,y,width,height,slice,area,fill,rows_crossed,columns_crossed,mean_probability,flags\n");
+		return rois;
+	}
+
+	/** The per-box table as CSV text (the same columns as the Fiji results table). */
+	public static String boxTable(List<Box> boxes, BoxMasks.Fit[] fits) {
+		StringBuilder csv = new StringBuilder(String.join(",", BOX_COLUMNS) + "\n");
 		for (int k = 0; k < boxes.size(); k++) {
 			Box b = boxes.get(k);
 			BoxMasks.Fit f = fits[k];
-			if (f == null) f = new BoxMasks.Fit(k + 1, b, 0, 0, 0, 0, 0, List.of("outside-image"));
-			csv.append(String.format(Locale.ROOT, "%d,%s,%d,%d,%d,%d,%d,%d,%.4f,%.4f,%.4f,%.4f,%s%n", k + 1, b.name(), b.x(), b.y(), b.width(), b.height(),
+			csv.append(String.format(Locale.ROOT, "%d,%s,%d,%d,%d,%d,%d,%d,%.4f,%.4f,%.4f,%.4f,%s%n", k + 1, csvText(b.name()), b.x(), b.y(), b.width(), b.height(),
 				b.slice(), f.area(), f.fill(), f.rowsCrossed(), f.columnsCrossed(), f.meanProbability(), String.join(";", f.flags())));
 		}
-		ImageFiles.saveTiff(ImageFiles.labelImage(base, labels, w, h, imp.getCalibration()), outDir.resolve(base + ".tif"));
-		RoiSets.writeZip(outDir.resolve(base + ".rois.zip"), rois);
-		AtomicFiles.writeString(outDir.resolve(base + ".objects.csv"), csv.toString());
+		return csv.toString();
+	}
+
+	/** A text cell for CSV (RFC 4180): quoted when it holds a comma, quote or line break. */
+	static String csvText(String s) {
+		if (s == null) return "";
+		if (s.indexOf(',') < 0 && s.indexOf('"') < 0 && s.indexOf('\n') < 0) return s;
+		return '"' + s.replace("\"", "\"\"") + '"';
+	}
+
+	public static final List<String> BOX_COLUMNS = List.of("box", "name", "x", "y", "width", "height", "slice", "area", "fill", "rows_crossed",
+		"columns_crossed", "mean_probability", "flags");
+
+	static void writeOutputs(Path outDir, String base, ImagePlus imp, int[][] labels, List<Box> boxes, BoxMasks.Fit[] fits, PlanarImage shown) {
+		int w = imp.getWidth(), h = imp.getHeight();
+		RoiSets.writeZip(outDir.resolve(base + ".rois.zip"), boxOutlines(labels, w, h, boxes));
+		AtomicFiles.writeString(outDir.resolve(base + ".objects.csv"), boxTable(boxes, fits));
 		if (shown != null) ImageFiles.savePng(Overlays.outlines(shown, labels[0]), outDir.resolve(base + ".overlay.png"));
+		ImageFiles.saveTiff(ImageFiles.labelImage(base, labels, w, h, imp.getCalibration()), outDir.resolve(base + ".tif")); // last: marks done
 	}
 
 	/** Per-image and pooled scores of label images against reference label images of the same names. */
@@ -177,14 +208,14 @@ public final class Jobs {
 		mkdirs(outDir);
 		int written = 0, skipped = 0;
 		Map<String, String> failed = new java.util.LinkedHashMap<>();
-		StringBuilder proposals = new StringBuilder("image,x,y,width,height,confidence\n");
+		StringBuilder proposals = new StringBuilder("image,x,y,width,height\n");
 		for (Path img : images) {
 			if (cancelled != null && cancelled.getAsBoolean()) throw new java.util.concurrent.CancellationException("folder run cancelled; finished images are complete, run again to resume");
 			String base = ImageFiles.baseName(img);
 			Path label = outDir.resolve(base + ".tif");
-			boolean done = Files.isRegularFile(label) && Files.isRegularFile(outDir.resolve(base + ".objects.csv")) && Files.isRegularFile(outDir.resolve(base + ".rois.zip"))
-				&& (!propose || Files.isRegularFile(outDir.resolve(base + ".boxes.zip")));
-			if (done && !propose) {
+			// the label image is written last, so its presence means the image is complete; proposing
+			// rebuilds the box file from every image, so it processes them all again
+			if (!propose && Files.isRegularFile(label)) {
 				skipped++;
 				log.accept(img.getFileName() + ": already done, skipped");
 				continue;
@@ -192,45 +223,18 @@ public final class Jobs {
 			try {
 				long t0 = System.nanoTime();
 				ImagePlus imp = ImageFiles.open(img);
-				int n = ImageFiles.positions(imp), w = imp.getWidth(), h = imp.getHeight();
-				int[][] labels = new int[n][];
-				List<Roi> rois = new ArrayList<>(), rects = new ArrayList<>();
-				StringBuilder csv = new StringBuilder("object,slice,x,y,width,height,area,mean_probability,confidence,flags\n");
-				PlanarImage first = null;
-				int total = 0;
-				for (int p = 1; p <= n; p++) {
-					int[] zt = ImageFiles.zt(imp, p);
-					PlanarImage raw = ImageFiles.planes(imp, zt[0], zt[1]);
-					if (first == null) first = raw;
-					WholeImage.Outcome o = WholeImage.mask(model, raw, objectSize);
-					int[] lab = o.result().labels();
-					for (int i = 0; i < lab.length; i++) if (lab[i] > 0) lab[i] += total; // ids unique across the stack
-					labels[p - 1] = lab;
-					String[] names = new String[total + o.result().count()];
-					for (org.corral.instances.ImageMasks.ObjectInfo oi : o.result().objects()) {
-						int id = oi.label() + total;
-						names[id - 1] = String.format(Locale.ROOT, "object-%04d", id);
-						csv.append(String.format(Locale.ROOT, "%d,%d,%d,%d,%d,%d,%d,%.4f,%.4f,%s%n", id, p, oi.x(), oi.y(), oi.width(), oi.height(), oi.area(),
-							oi.meanProbability(), oi.confidence(), String.join(";", oi.flags())));
-						Roi r = new Roi(oi.x(), oi.y(), oi.width(), oi.height());
-						r.setName(String.format(Locale.ROOT, "proposed-%04d", id));
-						if (n > 1) r.setPosition(p);
-						rects.add(r);
-						proposals.append(String.format(Locale.ROOT, "%s,%d,%d,%d,%d,%.4f%n", img.getFileName(), oi.x(), oi.y(), oi.width(), oi.height(), oi.confidence()));
-					}
-					for (Roi r : RoiSets.outlines(lab, w, h, names.length, names)) if (r != null) {
-						if (n > 1) r.setPosition(p);
-						rois.add(r);
-					}
-					total += o.result().count();
+				WholeImageOutcome o = maskWhole(imp, model, objectSize);
+				for (Roi r : o.proposals()) {
+					java.awt.Rectangle b = r.getBounds();
+					proposals.append(String.format(Locale.ROOT, "%s,%d,%d,%d,%d%n", img.getFileName(), b.x, b.y, b.width, b.height));
 				}
-				RoiSets.writeZip(outDir.resolve(base + ".rois.zip"), rois);
-				AtomicFiles.writeString(outDir.resolve(base + ".objects.csv"), csv.toString());
-				if (propose) RoiSets.writeZip(outDir.resolve(base + ".boxes.zip"), rects);
-				if (first != null) ImageFiles.savePng(Overlays.outlines(first, labels[0]), outDir.resolve(base + ".overlay.png"));
-				ImageFiles.saveTiff(ImageFiles.labelImage(base, labels, w, h, imp.getCalibration()), label); // last: marks the image done
+				RoiSets.writeZip(outDir.resolve(base + ".rois.zip"), o.outlines());
+				AtomicFiles.writeString(outDir.resolve(base + ".objects.csv"), o.table());
+				if (propose) RoiSets.writeZip(outDir.resolve(base + ".boxes.zip"), o.proposals());
+				if (o.shown() != null) ImageFiles.savePng(Overlays.outlines(o.shown(), o.labels()[0]), outDir.resolve(base + ".overlay.png"));
+				ImageFiles.saveTiff(ImageFiles.labelImage(base, o.labels(), imp.getWidth(), imp.getHeight(), imp.getCalibration()), label);
+				log.accept(String.format(Locale.ROOT, "%s: %d objects in %.2f s", img.getFileName(), o.count(), (System.nanoTime() - t0) / 1e9));
 				written++;
-				log.accept(String.format(Locale.ROOT, "%s: %d objects in %.2f s", img.getFileName(), total, (System.nanoTime() - t0) / 1e9));
 			} catch (CorralException | java.io.UncheckedIOException | IllegalArgumentException e) {
 				failed.put(img.getFileName().toString(), e.getMessage());
 				log.accept(img.getFileName() + ": FAILED: " + e.getMessage());
@@ -238,5 +242,45 @@ public final class Jobs {
 		}
 		if (propose) AtomicFiles.writeString(outDir.resolve("boxes.csv"), proposals.toString());
 		return new FolderReport(written, skipped, failed);
+	}
+
+	/** Whole-image result of one image: labels per stack position, outlines, proposed boxes, table. */
+	public record WholeImageOutcome(int[][] labels, int count, List<Roi> outlines, List<Roi> proposals, String table, PlanarImage shown) {}
+
+	public static final String OBJECT_HEADER = "object,slice,x,y,width,height,area,mean_probability,confidence,flags";
+
+	public static WholeImageOutcome maskWhole(ImagePlus imp, ModelRunner model, double objectSize) {
+		int n = ImageFiles.positions(imp), w = imp.getWidth(), h = imp.getHeight();
+		int[][] labels = new int[n][];
+		List<Roi> rois = new ArrayList<>(), rects = new ArrayList<>();
+		StringBuilder csv = new StringBuilder(OBJECT_HEADER + "\n");
+		PlanarImage first = null;
+		int total = 0;
+		for (int p = 1; p <= n; p++) {
+			int[] zt = ImageFiles.zt(imp, p);
+			PlanarImage raw = ImageFiles.planes(imp, zt[0], zt[1]);
+			if (first == null) first = raw;
+			WholeImage.Outcome o = WholeImage.mask(model, raw, objectSize);
+			int[] lab = o.result().labels();
+			for (int i = 0; i < lab.length; i++) if (lab[i] > 0) lab[i] += total; // ids unique across the stack
+			labels[p - 1] = lab;
+			String[] names = new String[total + o.result().count()];
+			for (org.corral.instances.ImageMasks.ObjectInfo oi : o.result().objects()) {
+				int id = oi.label() + total;
+				names[id - 1] = String.format(Locale.ROOT, "object-%04d", id);
+				csv.append(String.format(Locale.ROOT, "%d,%d,%d,%d,%d,%d,%d,%.4f,%.4f,%s%n", id, p, oi.x(), oi.y(), oi.width(), oi.height(), oi.area(),
+					oi.meanProbability(), oi.confidence(), String.join(";", oi.flags())));
+				Roi r = new Roi(oi.x(), oi.y(), oi.width(), oi.height());
+				r.setName(String.format(Locale.ROOT, "proposed-%04d", id));
+				if (n > 1) r.setPosition(p);
+				rects.add(r);
+			}
+			for (Roi r : RoiSets.outlines(lab, w, h, names.length, names)) if (r != null) {
+				if (n > 1) r.setPosition(p);
+				rois.add(r);
+			}
+			total += o.result().count();
+		}
+		return new WholeImageOutcome(labels, total, rois, rects, csv.toString(), first);
 	}
 }

@@ -1,0 +1,136 @@
+package org.corral.fiji;
+
+import ij.ImagePlus;
+import ij.gui.Overlay;
+import ij.gui.Roi;
+import ij.measure.ResultsTable;
+import ij.plugin.frame.RoiManager;
+import ij.process.LUT;
+
+import java.awt.Color;
+import java.awt.GraphicsEnvironment;
+import java.util.List;
+
+import org.corral.boxes.Box;
+import org.corral.instances.BoxMasks;
+import org.corral.io.ImageFiles;
+import org.corral.io.Overlays;
+import org.corral.score.Scores;
+
+/** Results back into ImageJ: label images with our lookup table, outline ROIs, results tables. */
+public final class ImageJOutputs {
+	private ImageJOutputs() {}
+
+	/** Our categorical lookup table: 0 black, label k the golden-angle hue of {@link Overlays#colour}. */
+	public static LUT labelLut() {
+		byte[] r = new byte[256], g = new byte[256], b = new byte[256];
+		for (int k = 1; k < 256; k++) {
+			int c = Overlays.colour(k);
+			r[k] = (byte) (c >> 16);
+			g[k] = (byte) (c >> 8);
+			b[k] = (byte) c;
+		}
+		return new LUT(r, g, b);
+	}
+
+	public static ImagePlus labelImage(String title, int[][] labels, ImagePlus like) {
+		ImagePlus out = ImageFiles.labelImage(title, labels, like.getWidth(), like.getHeight(), like.getCalibration());
+		if (out.getBitDepth() == 16) {
+			out.getProcessor().setLut(labelLut());
+			out.setDisplayRange(0, 255); // label k and k+255 share a colour; neighbours never do
+		}
+		return out;
+	}
+
+	/**
+	 * Outlines go to the ROI Manager when there is a display (removing the boxes unless {@code keep}),
+	 * and always into the source image's overlay, coloured like their labels.
+	 */
+	public static void showOutlines(ImagePlus source, List<Roi> outlines, boolean keep) {
+		Overlay ov = keep && source.getOverlay() != null ? source.getOverlay() : new Overlay();
+		if (!keep) ov.clear();
+		for (Roi r : outlines) {
+			Roi c = (Roi) r.clone();
+			c.setStrokeColor(new Color(Overlays.colour(labelOf(r))));
+			ov.add(c);
+		}
+		source.setOverlay(ov);
+		if (!GraphicsEnvironment.isHeadless()) {
+			RoiManager rm = RoiManager.getRoiManager();
+			if (!keep) rm.reset();
+			for (Roi r : outlines) rm.addRoi((Roi) r.clone());
+		}
+	}
+
+	private static int labelOf(Roi r) {
+		String n = r.getName();
+		try {
+			return Integer.parseInt(n.substring(n.indexOf('-') + 1, n.indexOf('-') + 5));
+		} catch (RuntimeException e) {
+			return 1;
+		}
+	}
+
+	public static ResultsTable boxTable(List<Box> boxes, BoxMasks.Fit[] fits) {
+		ResultsTable rt = new ResultsTable();
+		for (int k = 0; k < boxes.size(); k++) {
+			Box b = boxes.get(k);
+			BoxMasks.Fit f = fits[k];
+			rt.incrementCounter();
+			rt.addValue("box", k + 1);
+			rt.addValue("name", b.name());
+			rt.addValue("x", b.x());
+			rt.addValue("y", b.y());
+			rt.addValue("width", b.width());
+			rt.addValue("height", b.height());
+			rt.addValue("slice", b.slice());
+			rt.addValue("area", f.area());
+			rt.addValue("fill", f.fill());
+			rt.addValue("rows_crossed", f.rowsCrossed());
+			rt.addValue("columns_crossed", f.columnsCrossed());
+			rt.addValue("mean_probability", f.meanProbability());
+			rt.addValue("flags", String.join(";", f.flags()));
+		}
+		return rt;
+	}
+
+	/** A CSV text table (header row) as a ResultsTable; numeric cells become numbers. */
+	public static ResultsTable fromCsv(String csv) {
+		String[] lines = csv.strip().split("\n");
+		String[] head = lines[0].split(",");
+		ResultsTable rt = new ResultsTable();
+		for (int i = 1; i < lines.length; i++) {
+			String[] f = lines[i].split(",", -1);
+			rt.incrementCounter();
+			for (int c = 0; c < head.length && c < f.length; c++) {
+				try {
+					rt.addValue(head[c], Double.parseDouble(f[c]));
+				} catch (NumberFormatException e) {
+					rt.addValue(head[c], f[c]);
+				}
+			}
+		}
+		return rt;
+	}
+
+	public static ResultsTable scoreTable(String name, Scores.Tally t) {
+		ResultsTable rt = new ResultsTable();
+		rt.incrementCounter();
+		rt.addValue("image", name);
+		rt.addValue("reference_objects", t.refObjects);
+		rt.addValue("predicted_objects", t.predObjects);
+		rt.addValue("object_dice", t.objectDice());
+		rt.addValue("object_iou", t.objectIoU());
+		rt.addValue("pixel_dice", t.pixelDice());
+		rt.addValue("precision_50", t.precision(0.5));
+		rt.addValue("recall_50", t.recall(0.5));
+		rt.addValue("f1_50", t.f1(0.5));
+		rt.addValue("mean_ap", t.meanAP());
+		return rt;
+	}
+
+	/** Shows a table under a title when there is a display or a macro to read it; harmless headless. */
+	public static void show(ResultsTable rt, String title) {
+		rt.show(title);
+	}
+}

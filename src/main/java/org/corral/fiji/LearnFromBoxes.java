@@ -1,0 +1,111 @@
+package org.corral.fiji;
+
+import ij.ImagePlus;
+import ij.WindowManager;
+
+import java.io.File;
+import java.util.ArrayList;
+import java.util.List;
+
+import org.corral.CorralException;
+import org.corral.supervision.Supervision;
+import org.corral.train.LearnSettings;
+import org.corral.train.Learner;
+import org.corral.train.TrainingImage;
+import org.corral.workflow.BoxedImages;
+import org.corral.workflow.Jobs;
+import org.scijava.ItemIO;
+import org.scijava.command.Command;
+import org.scijava.plugin.Parameter;
+import org.scijava.plugin.Plugin;
+
+/** Learns a model from the boxes of the current image, of all open images, or of a folder. */
+@Plugin(type = Command.class, menuPath = "Plugins>Corral>Learn from Boxes")
+public class LearnFromBoxes implements Command {
+	public static final String CURRENT = "current image", ALL_OPEN = "all open images", FOLDER = "folder";
+
+	@Parameter(required = false, persist = false)
+	ImagePlus image;
+
+	@Parameter(label = "Boxes from", choices = {CURRENT, ALL_OPEN, FOLDER}, persist = false)
+	String source = CURRENT;
+
+	@Parameter(label = "Image folder (for 'folder')", style = "directory", required = false, persist = false)
+	File folder;
+
+	@Parameter(label = "Box CSV (for 'folder'; else ROI sets beside the images)", required = false, persist = false)
+	File table;
+
+	@Parameter(label = "Model file to write", style = "save", persist = false)
+	File model;
+
+	@Parameter(label = "Steps", min = "1", persist = false)
+	int steps = new LearnSettings().steps;
+
+	@Parameter(label = "Seed", persist = false)
+	long seed = 1;
+
+	@Parameter(label = "Band width w", min = "1", persist = false)
+	int band = 5;
+
+	@Parameter(label = "Margin for loose boxes (px)", min = "0", persist = false)
+	int margin = 0;
+
+	@Parameter(label = "Only some objects are boxed", persist = false)
+	boolean partial = false;
+
+	@Parameter(label = "Live plot", persist = false)
+	boolean plot = true;
+
+	@Parameter(type = ItemIO.OUTPUT)
+	String summary;
+
+	/** Set by callers (the macro bridge) that can cancel from outside. */
+	ImageJProgress progress;
+
+	@Override
+	public void run() {
+		LearnSettings s = new LearnSettings();
+		s.steps = steps;
+		s.seed = seed;
+		s.band = band;
+		s.margin = margin;
+		s.minutes = 0; // in ImageJ the user cancels with Esc; the step count keeps results reproducible
+		if (partial) s.background = Supervision.BackgroundMode.RING;
+		if (model == null) throw new CorralException("Choose where to save the model");
+		List<TrainingImage> images = new ArrayList<>();
+		switch (source) {
+			case FOLDER -> {
+				if (folder == null) throw new CorralException("Choose the image folder");
+				images.addAll(Jobs.trainingImages(BoxedImages.find(folder.toPath(), table == null ? null : table.toPath())));
+			}
+			case ALL_OPEN -> {
+				int[] ids = WindowManager.getIDList();
+				if (ids == null) throw new CorralException("No open images");
+				for (int id : ids) {
+					ImagePlus imp = WindowManager.getImage(id);
+					ImageJBoxes.Found f;
+					try {
+						f = ImageJBoxes.of(imp);
+					} catch (CorralException e) {
+						continue; // an open image without boxes is simply not used
+					}
+					images.addAll(Jobs.trainingImages(imp, imp.getTitle(), f.boxes(), f.region()));
+				}
+			}
+			default -> {
+				if (image == null) throw new CorralException("No image: open the image whose boxes to learn from");
+				ImageJBoxes.Found f = ImageJBoxes.of(image);
+				images.addAll(Jobs.trainingImages(image, image.getTitle(), f.boxes(), f.region()));
+			}
+		}
+		if (images.isEmpty()) throw new CorralException("No boxes found to learn from (" + source + ")");
+		ImageJProgress p = progress != null ? progress : new ImageJProgress(plot);
+		try (Learner.Result r = new Learner(s).learn(images, p)) {
+			org.corral.model.ModelFile.write(model.toPath(), r.header(), r.net());
+			summary = String.format(java.util.Locale.ROOT, "learned from %s boxes on %s image(s) in %s steps; constraints met %.3f; model %s", r.header().counts.get("boxes"),
+				r.header().counts.get("images"), r.header().counts.get("steps"), r.header().scores.getOrDefault("constraintsMet", Double.NaN), model);
+			ij.IJ.showStatus("Corral: " + summary);
+		}
+	}
+}

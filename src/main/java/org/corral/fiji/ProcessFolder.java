@@ -1,0 +1,57 @@
+package org.corral.fiji;
+
+import java.io.File;
+
+import org.corral.CorralException;
+import org.corral.predict.ModelRunner;
+import org.corral.workflow.BoxedImages;
+import org.corral.workflow.Jobs;
+import org.scijava.ItemIO;
+import org.scijava.command.Command;
+import org.scijava.plugin.Parameter;
+import org.scijava.plugin.Plugin;
+
+/**
+ * Folder in, folder out: label TIFFs, ROI zips, per-image CSV; resumable (images already done are
+ * skipped), atomic, and a failing image is reported without stopping the rest.
+ */
+@Plugin(type = Command.class, menuPath = "Plugins>Corral>Process Folder")
+public class ProcessFolder implements Command {
+	public static final String WHOLE = "whole images", BOXES = "boxes";
+
+	@Parameter(label = "Image folder", style = "directory", persist = false)
+	File input;
+
+	@Parameter(label = "Output folder", style = "directory", persist = false)
+	File output;
+
+	@Parameter(label = "Model file", persist = false)
+	File model;
+
+	@Parameter(label = "Mask", choices = {WHOLE, BOXES}, persist = false)
+	String mode = WHOLE;
+
+	@Parameter(label = "Box CSV (for 'boxes'; else ROI sets beside the images)", required = false, persist = false)
+	File table;
+
+	@Parameter(type = ItemIO.OUTPUT)
+	String summary;
+
+	@Override
+	public void run() {
+		if (input == null || output == null || model == null) throw new CorralException("Choose the image folder, the output folder and the model file");
+		try (ModelRunner m = ModelRunner.open(model.toPath())) {
+			if (BOXES.equals(mode)) {
+				var boxed = BoxedImages.find(input.toPath(), table == null ? null : table.toPath());
+				if (boxed.isEmpty()) throw new CorralException("No boxes found for the images in " + input);
+				Jobs.maskBoxes(boxed, m, output.toPath(), ij.IJ::log);
+				summary = boxed.size() + " image(s) masked";
+			} else {
+				Jobs.FolderReport r = Jobs.maskImages(BoxedImages.images(input.toPath()), m, output.toPath(), 0, false, ij.IJ::escapePressed, ij.IJ::log);
+				summary = r.written() + " written, " + r.skipped() + " skipped (already done), " + r.failed().size() + " failed"
+					+ (r.failed().isEmpty() ? "" : ": " + r.failed());
+			}
+		}
+		ij.IJ.log("Corral: " + summary);
+	}
+}
