@@ -150,7 +150,10 @@ public final class MacroBridge implements PlugIn {
 			if (p == null || p.type() != ItemIO.OUTPUT) continue;
 			Object v = m.getOutput(f.getName());
 			if (v instanceof ImagePlus imp) imp.show();
-			else if (v instanceof ResultsTable rt) rt.show("Results");
+			else if (v instanceof ResultsTable rt) { // becomes the system Results table: nResults, getResult()
+				ij.plugin.filter.Analyzer.setResultsTable(rt);
+				rt.show("Results");
+			}
 			else if (v != null) {
 				LAST.put(f.getName(), v.toString());
 				IJ.log("Corral: " + v);
