@@ -84,7 +84,7 @@ public final class Main {
 				a.checkAllUsed();
 				Map<Path, List<Box>> boxed = BoxedImages.find(images, boxes);
 				AtomicBoolean stop = cancelOnInterrupt();
-				Learner.Result r = Jobs.learn(boxed, s, model, printer(stop));
+				Learner.Result r = Jobs.learn(boxed, s, model, printer(stop), note -> System.out.println("note: " + note));
 				System.out.printf(Locale.ROOT, "model written to %s (%s steps, %.3f s/step, constraints met %.3f)%n", model, r.header().counts.get("steps"),
 					r.header().counts.get("secondsPerStep"), r.header().scores.getOrDefault("constraintsMet", Double.NaN));
 				r.close();

@@ -29,10 +29,10 @@ public final class ImageJBoxes {
 		Roi[] rois = null;
 		String from;
 		RoiManager rm = RoiManager.getInstance();
-		if (rm != null && rm.getCount() > 0) {
+		if (rm != null && java.util.Arrays.stream(rm.getRoisAsArray()).anyMatch(ImageJBoxes::isBox)) {
 			rois = rm.getRoisAsArray();
 			from = "the ROI Manager";
-		} else {
+		} else { // an empty ROI Manager, or one holding only outlines, leaves the overlay in charge
 			Overlay ov = imp.getOverlay();
 			if (ov != null && ov.size() > 0) rois = ov.toArray();
 			from = "the overlay of " + imp.getTitle();
@@ -58,6 +58,11 @@ public final class ImageJBoxes {
 		}
 		if (boxes.isEmpty()) throw new CorralException("No rectangles in " + from + " for " + imp.getTitle());
 		return new Found(boxes, region, from);
+	}
+
+	static boolean isBox(Roi r) {
+		String n = r.getName() == null ? "" : r.getName().toLowerCase(Locale.ROOT);
+		return r.getType() == Roi.RECTANGLE && !n.startsWith("mask-") && !n.startsWith("object-") && !n.startsWith("region");
 	}
 
 	private static void paint(byte[] region, Roi r, int w, int h) {

@@ -77,7 +77,7 @@ public class LearnFromBoxes implements Command {
 		switch (source) {
 			case FOLDER -> {
 				if (folder == null) throw new CorralException("Choose the image folder");
-				images.addAll(Jobs.trainingImages(BoxedImages.find(folder.toPath(), table == null ? null : table.toPath())));
+				images.addAll(Jobs.trainingImages(BoxedImages.find(folder.toPath(), table == null ? null : table.toPath()), ij.IJ::log));
 			}
 			case ALL_OPEN -> {
 				int[] ids = WindowManager.getIDList();
@@ -90,13 +90,13 @@ public class LearnFromBoxes implements Command {
 					} catch (CorralException e) {
 						continue; // an open image without boxes is simply not used
 					}
-					images.addAll(Jobs.trainingImages(imp, imp.getTitle(), f.boxes(), f.region()));
+					images.addAll(Jobs.trainingImages(imp, imp.getTitle(), f.boxes(), f.region(), ij.IJ::log));
 				}
 			}
 			default -> {
 				if (image == null) throw new CorralException("No image: open the image whose boxes to learn from");
 				ImageJBoxes.Found f = ImageJBoxes.of(image);
-				images.addAll(Jobs.trainingImages(image, image.getTitle(), f.boxes(), f.region()));
+				images.addAll(Jobs.trainingImages(image, image.getTitle(), f.boxes(), f.region(), ij.IJ::log));
 			}
 		}
 		if (images.isEmpty()) throw new CorralException("No boxes found to learn from (" + source + ")");

@@ -54,7 +54,7 @@ public class MasksForBoxes implements Command {
 			LearnSettings s = new LearnSettings();
 			s.steps = steps;
 			s.minutes = 0;
-			try (Learner.Result r = new Learner(s).learn(Jobs.trainingImages(image, image.getTitle(), bs, f.region()), new ImageJProgress(false))) {
+			try (Learner.Result r = new Learner(s).learn(Jobs.trainingImages(image, image.getTitle(), bs, f.region(), ij.IJ::log), new ImageJProgress(false))) {
 				o = Jobs.maskBoxes(image, bs, new ModelRunner(r.header(), r.net(), r.manager()));
 			}
 		}

@@ -4,6 +4,9 @@ package org.corral.image;
 public final class PlanarImage {
 	public final int width, height;
 	public final float[][] channels;
+	/** Pixel width in {@link #unit} when the image is calibrated, else 0 (metadata only). */
+	public double pixelWidth;
+	public String unit;
 
 	public PlanarImage(int width, int height, float[][] channels) {
 		if (width < 1 || height < 1) throw new IllegalArgumentException("empty image " + width + "x" + height);
@@ -24,6 +27,24 @@ public final class PlanarImage {
 
 	public float get(int c, int x, int y) {
 		return channels[c][y * width + x];
+	}
+
+	/** This image's pixel width in micrometres, or 0 when it is not calibrated in a known length unit. */
+	public double micronsPerPixel() {
+		return pixelWidth > 0 ? pixelWidth * micronsPer(unit) : 0;
+	}
+
+	/** Micrometres per unit for the length units ImageJ writes; 0 for unknown ones. */
+	public static double micronsPer(String unit) {
+		if (unit == null) return 0;
+		return switch (unit.trim().toLowerCase(java.util.Locale.ROOT)) {
+			case "µm", "um", "micron", "microns", "micrometer", "micrometre" -> 1;
+			case "nm", "nanometer", "nanometre" -> 1e-3;
+			case "mm", "millimeter", "millimetre" -> 1e3;
+			case "cm" -> 1e4;
+			case "m", "meter", "metre" -> 1e6;
+			default -> 0;
+		};
 	}
 
 	public long pixels() {

@@ -10,7 +10,9 @@ import org.corral.boxes.Box;
  * connected component with the most probability mass, holes filled. When a box yields nothing at
  * the threshold, lower thresholds are tried (down to {@link #MIN_THRESHOLD}). Pixels claimed by
  * two boxes go to the box whose centre is nearer, measured in units of each box's half-sides, and
- * each object then keeps its largest piece, so no pixel belongs to two objects.
+ * each object then keeps its largest piece, so no pixel belongs to two objects. An exact duplicate of
+ * an earlier box gets no pixels and the flag {@code duplicate-of-k}; a box wholly outside the image
+ * keeps its row with the flag {@code outside-image}; a nested box wins the pixels near its centre.
  * Label value k is the mask of the k-th box of the list (k = 1..n).
  */
 public final class BoxMasks {
@@ -28,9 +30,16 @@ public final class BoxMasks {
 		int n = boxes.size();
 		int[] owner = new int[w * h];
 		double[] ownerDist = new double[w * h];
+		int[] duplicateOf = new int[n + 1];
+		java.util.Map<String, Integer> seen = new java.util.HashMap<>();
+		for (int k = 1; k <= n; k++) {
+			Box b = boxes.get(k - 1);
+			Integer first = seen.putIfAbsent(b.x() + "," + b.y() + "," + b.width() + "," + b.height(), k);
+			if (first != null) duplicateOf[k] = first; // the object has its mask already: no pixel twice
+		}
 		for (int k = 1; k <= n; k++) {
 			Box b = boxes.get(k - 1).clip(w, h);
-			if (b == null) continue;
+			if (b == null || duplicateOf[k] > 0) continue;
 			boolean[] m = boxMask(prob, w, b, threshold);
 			double cx = boxes.get(k - 1).centreX() - 0.5, cy = boxes.get(k - 1).centreY() - 0.5;
 			double rx = boxes.get(k - 1).width() / 2.0, ry = boxes.get(k - 1).height() / 2.0;
@@ -54,6 +63,10 @@ public final class BoxMasks {
 			Box b = orig.clip(w, h);
 			if (b == null) {
 				fits.add(new Fit(k, orig, 0, 0, 0, 0, 0, List.of("outside-image")));
+				continue;
+			}
+			if (duplicateOf[k] > 0) {
+				fits.add(new Fit(k, orig, 0, 0, 0, 0, 0, List.of("duplicate-of-" + duplicateOf[k])));
 				continue;
 			}
 			int bw = b.width(), bh = b.height();

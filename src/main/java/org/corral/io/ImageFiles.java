@@ -61,6 +61,16 @@ public final class ImageFiles {
 
 	/** The channels of one stack position (1-based z and t) as a float image; RGB gives 3 channels. */
 	public static PlanarImage planes(ImagePlus imp, int z, int t) {
+		PlanarImage p = rawPlanes(imp, z, t);
+		Calibration cal = imp.getCalibration();
+		if (cal != null && cal.scaled()) {
+			p.pixelWidth = cal.pixelWidth;
+			p.unit = cal.getUnit();
+		}
+		return p;
+	}
+
+	private static PlanarImage rawPlanes(ImagePlus imp, int z, int t) {
 		int w = imp.getWidth(), h = imp.getHeight();
 		ImageStack st = imp.getStack();
 		int nc = imp.getNChannels();

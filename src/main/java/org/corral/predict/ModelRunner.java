@@ -59,6 +59,22 @@ public final class ModelRunner implements AutoCloseable {
 		return Math.max(0.25, Math.min(4, f));
 	}
 
+	/**
+	 * The factor from the calibrations, when both the model and the image know their pixel size:
+	 * an image at half the model's pixel size shows objects twice as large, so it is halved.
+	 * 0 when either is uncalibrated. An image calibrated in a unit that is not a length is refused.
+	 */
+	public double scaleForCalibration(PlanarImage im) {
+		if (header.pixelSize <= 0 || im.pixelWidth <= 0) return 0;
+		double um = im.micronsPerPixel();
+		if (um <= 0)
+			throw new CorralException("The image is calibrated in '" + im.unit + "', which Corral cannot compare with the model's pixel size (" + header.pixelSize
+				+ " micron); remove the calibration or give the object size");
+		double f = um / header.pixelSize;
+		if (f < SCALE_TOLERANCE && f > 1 / SCALE_TOLERANCE) return 1;
+		return Math.max(0.25, Math.min(4, f));
+	}
+
 	public static double medianSide(List<Box> boxes) {
 		double[] v = boxes.stream().mapToDouble(b -> (b.width() + b.height()) / 2.0).sorted().toArray();
 		if (v.length == 0) return 0;
@@ -69,11 +85,25 @@ public final class ModelRunner implements AutoCloseable {
 	public float[] probability(PlanarImage raw, double scale, BooleanSupplier cancelled) {
 		if (raw.nChannels() != header.inChannels)
 			throw new CorralException("The model was learned on " + header.inChannels + "-channel images; this image has " + raw.nChannels());
+		if (constant(raw)) return new float[raw.width * raw.height]; // no contrast, no objects
 		PlanarImage norm = Normalise.percentiles(raw, header.normLow, header.normHigh);
 		if (scale == 1) return predictor.predict(norm, cancelled);
 		int sw = Math.max(1, (int) Math.round(raw.width * scale)), sh = Math.max(1, (int) Math.round(raw.height * scale));
 		float[] p = predictor.predict(Resample.bilinear(norm, sw, sh), cancelled);
 		return Resample.bilinear(p, sw, sh, raw.width, raw.height);
+	}
+
+	/** True when every channel holds a single finite value (NaN and infinities ignored). */
+	static boolean constant(PlanarImage im) {
+		for (float[] c : im.channels) {
+			float first = Float.NaN;
+			for (float v : c) {
+				if (!Float.isFinite(v)) continue;
+				if (Float.isNaN(first)) first = v;
+				else if (v != first) return false;
+			}
+		}
+		return true;
 	}
 
 	@Override

@@ -60,8 +60,9 @@ public final class Learner {
 		int nc = images.get(0).image().nChannels();
 		int nBoxes = 0;
 		List<CropSampler.Prepared> prepared = new ArrayList<>();
-		List<Double> sides = new ArrayList<>();
+		List<Double> sides = new ArrayList<>(), microns = new ArrayList<>();
 		for (TrainingImage ti : images) {
+			microns.add(ti.image().micronsPerPixel());
 			if (ti.image().nChannels() != nc)
 				throw new CorralException("Image " + ti.name() + " has " + ti.image().nChannels() + " channel(s), the first image " + nc + "; all learning images need the same channels");
 			PlanarImage norm = Normalise.percentiles(ti.image());
@@ -154,6 +155,11 @@ public final class Learner {
 			h.normLow = Normalise.LOW;
 			h.normHigh = Normalise.HIGH;
 			h.objectSize = median(sides);
+			// the pixel size is remembered only when every learning image is calibrated alike
+			if (!microns.contains(0.0) && java.util.Collections.max(microns) < 1.01 * java.util.Collections.min(microns)) {
+				h.pixelSize = median(microns);
+				h.pixelUnit = "micron";
+			}
 			h.seed = s.seed;
 			h.training = s.asMap();
 			h.counts.put("images", prepared.size());

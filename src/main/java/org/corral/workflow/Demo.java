@@ -24,7 +24,7 @@ public final class Demo {
 		Map<Path, List<Box>> boxed = BoxedImages.find(images, boxes);
 		Path model = out.resolve("demo-model.zip");
 		log.accept("learning from " + boxed.values().stream().mapToInt(List::size).sum() + " boxes on " + boxed.size() + " images, " + s.steps + " steps");
-		try (Learner.Result r = Jobs.learn(boxed, s, model, progress)) {
+		try (Learner.Result r = Jobs.learn(boxed, s, model, progress, note -> log.accept("note: " + note))) {
 			log.accept("model: " + model);
 		}
 		Path labels = out.resolve("masks");

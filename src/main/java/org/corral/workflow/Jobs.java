@@ -13,6 +13,7 @@ import java.util.function.Consumer;
 
 import org.corral.CorralException;
 import org.corral.boxes.Box;
+import org.corral.boxes.BoxChecks;
 import org.corral.image.PlanarImage;
 import org.corral.instances.BoxMasks;
 import org.corral.io.AtomicFiles;
@@ -39,18 +40,27 @@ public final class Jobs {
 	}
 
 	public static List<TrainingImage> trainingImages(Map<Path, List<Box>> boxed) {
+		return trainingImages(boxed, note -> {});
+	}
+
+	public static List<TrainingImage> trainingImages(Map<Path, List<Box>> boxed, Consumer<String> notes) {
 		List<TrainingImage> out = new ArrayList<>();
 		for (Map.Entry<Path, List<Box>> e : boxed.entrySet())
-			out.addAll(trainingImages(ImageFiles.open(e.getKey()), e.getKey().getFileName().toString(), e.getValue(), null));
+			out.addAll(trainingImages(ImageFiles.open(e.getKey()), e.getKey().getFileName().toString(), e.getValue(), null, notes));
 		return out;
 	}
 
-	/** One training image per stack position that holds boxes; {@code region} = annotated region or null. */
-	public static List<TrainingImage> trainingImages(ImagePlus imp, String name, List<Box> boxes, byte[] region) {
+	/**
+	 * One training image per stack position that holds boxes; {@code region} = annotated region or
+	 * null. Awkward boxes are handled as {@link BoxChecks} defines, and each case is noted.
+	 */
+	public static List<TrainingImage> trainingImages(ImagePlus imp, String name, List<Box> boxes, byte[] region, Consumer<String> notes) {
+		BoxChecks.Checked checked = BoxChecks.forLearning(boxes, imp.getWidth(), imp.getHeight(), name);
+		checked.notes().forEach(notes);
 		List<TrainingImage> out = new ArrayList<>();
 		int n = ImageFiles.positions(imp);
 		for (int p = 1; p <= n; p++) {
-			List<Box> bs = boxesAt(boxes, p, n);
+			List<Box> bs = boxesAt(checked.usable(), p, n);
 			if (bs.isEmpty()) continue;
 			int[] zt = ImageFiles.zt(imp, p);
 			out.add(new TrainingImage(name + (n > 1 ? " position " + p : ""), ImageFiles.planes(imp, zt[0], zt[1]), bs, region));
@@ -59,9 +69,11 @@ public final class Jobs {
 	}
 
 	/** Learns and writes the model file atomically; returns the learning result's header figures. */
-	public static Learner.Result learn(Map<Path, List<Box>> boxed, LearnSettings settings, Path modelFile, Progress progress) {
-		List<TrainingImage> images = trainingImages(boxed);
+	public static Learner.Result learn(Map<Path, List<Box>> boxed, LearnSettings settings, Path modelFile, Progress progress, Consumer<String> notes) {
+		List<TrainingImage> images = trainingImages(boxed, notes);
 		int nb = images.stream().mapToInt(t -> t.boxes().size()).sum();
+		int given = boxed.values().stream().mapToInt(List::size).sum();
+		if (nb == 0 && given > 0) throw new CorralException("Nothing to learn from: none of the " + given + " box(es) lies inside its image");
 		if (nb == 0) throw new CorralException("No boxes to learn from: give a box file or ROI sets with at least one rectangle");
 		Learner.Result r = new Learner(settings).learn(images, progress);
 		ModelFile.write(modelFile, r.header(), r.net());
@@ -193,6 +205,8 @@ public final class Jobs {
 		if (!Files.isWritable(dir)) throw new CorralException("Output folder " + dir + " is not writable");
 	}
 
+	public static final String FAILURES = "corral-failures.csv";
+
 	/** What a folder run did: images written, skipped because already done, and failures by name. */
 	public record FolderReport(int written, int skipped, Map<String, String> failed) {}
 
@@ -241,6 +255,18 @@ public final class Jobs {
 			}
 		}
 		if (propose) AtomicFiles.writeString(outDir.resolve("boxes.csv"), proposals.toString());
+		// failures are kept in a file too, for batch jobs nobody watches; a clean rerun removes it
+		Path failures = outDir.resolve(FAILURES);
+		if (failed.isEmpty()) try {
+			Files.deleteIfExists(failures);
+		} catch (java.io.IOException e) {
+			throw new CorralException("Cannot remove " + failures + ": " + e.getMessage(), e);
+		}
+		else {
+			StringBuilder f = new StringBuilder("image,error\n");
+			failed.forEach((k, v) -> f.append(csvText(k)).append(',').append(csvText(v)).append('\n'));
+			AtomicFiles.writeString(failures, f.toString());
+		}
 		return new FolderReport(written, skipped, failed);
 	}
 

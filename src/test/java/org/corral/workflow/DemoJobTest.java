@@ -79,7 +79,7 @@ class DemoJobTest {
 			s.minutes = 0;
 			s.seed = seeds[i];
 			Path model = out.resolve("m" + i + ".zip");
-			Jobs.learn(boxed, s, model, org.corral.train.Progress.silent()).close();
+			Jobs.learn(boxed, s, model, org.corral.train.Progress.silent(), n -> {}).close();
 			try (var m = org.corral.predict.ModelRunner.open(model)) {
 				Jobs.maskBoxes(boxed, m, out.resolve("r" + i), x -> {});
 			}
