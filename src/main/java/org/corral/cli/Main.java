@@ -34,6 +34,7 @@ public final class Main {
 		  score       label images vs reference label images -> score table
 		  demo        the whole job on the bundled demo images
 		  benchmark   learn on half of a reference set, mask the other half, print figures
+		  tour        on a display: box ten demo objects in the ROI Manager, learn, mask, take screenshots
 		""";
 
 	static final String LEARN_HELP = """
@@ -156,7 +157,7 @@ public final class Main {
 				return 0;
 			}
 			case "benchmark" -> {
-				if (help) return print("corral benchmark --data DIR [--data2 DIR] [--minutes M] [--steps N] [--seed S] ...\n  each DIR is a reference set (images/, labels/, boxes.csv): learn on the first 5 images, mask the other 5\n");
+				if (help) return print("corral benchmark --data DIR [--data2 DIR] [--grow 0,2,4,8] [learn options]\n  each DIR is a reference set (images/, labels/, boxes.csv): learn on the first 5 images, mask the other 5;\n  prints the figures of Corral, the box itself and Otsu in the box; with boxes (tight) and without (whole image).\n  --grow LIST  instead: per-object Dice with every box enlarged by each amount, without and with --margin\n");
 				Args a = new Args(job, argv, 1, Set.of("partial"));
 				threads(a);
 				List<Path> sets = new java.util.ArrayList<>();
@@ -164,7 +165,15 @@ public final class Main {
 				if (a.has("data2")) sets.add(a.path("data2", true));
 				LearnSettings s = settings(a);
 				int nLearn = a.integer("learn-images", 5);
+				String grow = a.str("grow", null);
 				a.checkAllUsed();
+				if (grow != null) { // the loose-box sensitivity table instead
+					int[] g = java.util.Arrays.stream(grow.split(",")).map(String::trim).mapToInt(Integer::parseInt).toArray();
+					StringBuilder t = new StringBuilder();
+					for (Path set : sets) t.append(Benchmark.sensitivity(set, s, nLearn, g, System.out::println));
+					System.out.print("\n" + t);
+					return 0;
+				}
 				StringBuilder all = new StringBuilder();
 				for (Path set : sets) {
 					System.out.println("== " + set);
@@ -175,6 +184,22 @@ public final class Main {
 				}
 				System.out.print("\n" + all);
 				System.out.printf(Locale.ROOT, "peak memory (resident): %.0f MiB%n", Benchmark.peakMemoryBytes() / 1048576.0);
+				return 0;
+			}
+			case "tour" -> {
+				if (help) return print("corral tour [--out DIR] [--steps N]\n  on a display (xvfb-run -a on a server): boxes ten demo objects in the ROI Manager, learns, masks,\n  and saves screenshots of the learning plot, the outlines and the windows (default out: corral-tour)\n");
+				Args a = new Args(job, argv, 1, Set.of());
+				Path out = Path.of(a.str("out", "corral-tour"));
+				int steps = a.integer("steps", DEMO_STEPS);
+				a.checkAllUsed();
+				try {
+					org.corral.fiji.Tour.run(Path.of("test-images"), out, steps);
+				} catch (CorralException e) {
+					throw e;
+				} catch (Exception e) {
+					throw new CorralException("tour failed: " + e, e);
+				}
+				System.out.println("screenshots in " + out.toAbsolutePath() + ": learning-plot.png, outlines-over-image.png, screen.png; table boxes-table.csv");
 				return 0;
 			}
 			default -> throw new CorralException("unknown job '" + job + "'\n" + USAGE);

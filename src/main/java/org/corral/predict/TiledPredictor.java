@@ -16,7 +16,8 @@ import org.corral.net.UNet;
 /**
  * Object probability of every pixel of an image of any size, tile by tile: each tile is read with
  * an overlap of context on every side (mirrored at the image border) and only its centre is kept,
- * so seams do not show and memory depends on the tile size, not on the image size.
+ * so seams do not show and memory depends on the tile size, not on the image size. Tiles are
+ * at most {@code tile} pixels on a side.
  */
 public final class TiledPredictor {
 	private final UNet net;
@@ -31,8 +32,9 @@ public final class TiledPredictor {
 		this.overlap = overlap;
 	}
 
+	/** Tiles of at most 1024 x 1024 pixels (about 0.5 GB of activations for the default network). */
 	public TiledPredictor(UNet net, NDManager manager) {
-		this(net, manager, 512, 32);
+		this(net, manager, 1024, 32);
 	}
 
 	/** Probabilities in [0, 1], raster order. {@code im} must already be normalised. */
@@ -44,13 +46,17 @@ public final class TiledPredictor {
 		int m = net.multiple();
 		boolean grad = JniUtils.isGradMode();
 		JniUtils.setGradMode(false);
+		// as few tiles as the size limit allows, all of about the same size: no tile is mostly padding
+		int nx = (w + tile - 1) / tile, ny = (h + tile - 1) / tile;
+		int tw = (w + nx - 1) / nx, th = (h + ny - 1) / ny;
 		try {
-			for (int ty = 0; ty < h; ty += tile)
-				for (int tx = 0; tx < w; tx += tile) {
+			for (int ty = 0; ty < h; ty += th)
+				for (int tx = 0; tx < w; tx += tw) {
 					if (cancelled != null && cancelled.getAsBoolean()) throw new java.util.concurrent.CancellationException("prediction cancelled");
-					int cw = Math.min(tile, w - tx), ch = Math.min(tile, h - ty);
-					int iw = roundUp(cw + 2 * overlap, m), ih = roundUp(ch + 2 * overlap, m);
-					int ox = tx - (iw - cw) / 2, oy = ty - (ih - ch) / 2;
+					int cw = Math.min(tw, w - tx), ch = Math.min(th, h - ty);
+					// tile origins on the pooling grid of the whole image, so every tile pools alike
+					int ox = Math.floorDiv(tx - overlap, m) * m, oy = Math.floorDiv(ty - overlap, m) * m;
+					int iw = roundUp(tx + cw + overlap - ox, m), ih = roundUp(ty + ch + overlap - oy, m);
 					float[] in = new float[im.nChannels() * iw * ih];
 					for (int c = 0; c < im.nChannels(); c++) {
 						float[] src = im.channels[c];

@@ -32,10 +32,34 @@ public final class Benchmark {
 	public record Row(String method, Scores.Tally tally, double learnSeconds, double secondsPerStep, double megapixelsPerSecond) {}
 
 	public static List<Row> run(Path set, LearnSettings settings, int nLearn, Consumer<String> log) {
+		return run(set, settings, nLearn, 0, log);
+	}
+
+	/**
+	 * Loose boxes: the per-object Dice when every box (learning and masking) is enlarged by each of
+	 * {@code grows} pixels per side, learned once without a margin and once with the margin set to
+	 * the enlargement. Rows: grow, margin, per-object Dice, and the box itself for reference.
+	 */
+	public static String sensitivity(Path set, LearnSettings settings, int nLearn, int[] grows, Consumer<String> log) {
+		StringBuilder sb = new StringBuilder(String.format(Locale.ROOT, "%-28s %6s %7s %9s %9s%n", "set", "grow", "margin", "objDice", "boxDice"));
+		int margin0 = settings.margin;
+		for (int g : grows)
+			for (int m : g == 0 ? new int[] {0} : new int[] {0, g}) {
+				settings.margin = m;
+				log.accept("-- boxes grown by " + g + " px, margin " + m);
+				List<Row> rows = run(set, settings, nLearn, g, log);
+				sb.append(String.format(Locale.ROOT, "%-28s %6d %7d %9.4f %9.4f%n", set.getFileName(), g, m, rows.get(0).tally().objectDice(), rows.get(1).tally().objectDice()));
+			}
+		settings.margin = margin0;
+		return sb.toString();
+	}
+
+	public static List<Row> run(Path set, LearnSettings settings, int nLearn, int grow, Consumer<String> log) {
 		Path images = set.resolve("images"), labels = set.resolve("labels"), boxFile = set.resolve("boxes.csv");
 		if (!Files.isDirectory(images) || !Files.isDirectory(labels) || !Files.isRegularFile(boxFile))
 			throw new CorralException(set + " is not a reference set (needs images/, labels/ and boxes.csv)");
 		Map<Path, List<Box>> all = BoxedImages.find(images, boxFile);
+		if (grow != 0) all.replaceAll((k, v) -> v.stream().map(b -> b.grown(grow)).toList());
 		List<Path> names = new ArrayList<>(all.keySet());
 		names.sort(null);
 		if (names.size() <= nLearn) throw new CorralException(set + ": needs more than " + nLearn + " boxed images");

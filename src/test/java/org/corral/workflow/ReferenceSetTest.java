@@ -1,5 +1,6 @@
 package org.corral.workflow;
 
+import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import java.nio.file.Path;
@@ -15,42 +16,122 @@ import org.corral.instances.BoxMasks;
 import org.corral.io.ImageFiles;
 import org.corral.predict.ModelRunner;
 import org.corral.score.Scores;
+import org.corral.supervision.Supervision;
 import org.corral.train.LearnSettings;
 import org.corral.train.Learner;
 import org.corral.train.Progress;
+import org.junit.jupiter.api.MethodOrderer;
+import org.junit.jupiter.api.Order;
 import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.TestMethodOrder;
 
 /**
  * BBBC039 (../shared/reference-data/bbbc039-u2os-nuclei, SOURCE.md there): learn from the boxes of
- * the first 5 images, mask the boxes of the other 5, score against the authors' masks.
- * The figures to beat are from BASELINES.md there: box itself 0.840, inscribed ellipse 0.879.
+ * the first 5 images, mask the boxes of the other 5, score against the authors' masks. The figures
+ * to beat are from BASELINES.md there: box itself 0.840, inscribed ellipse 0.879 (per-object Dice).
  */
+@TestMethodOrder(MethodOrderer.OrderAnnotation.class)
 class ReferenceSetTest {
+	static final int STEPS = 200; // a bounded budget: about a minute on 2 cores
+	/** How much worse the boxed objects may get when only half of them are boxed (stated in README). */
+	static final double PARTIAL_TOLERANCE = 0.02;
+	static double fullDice = Double.NaN;
+
+	static Map<Path, List<Box>> all;
+	static List<Path> names;
+
+	static void load() {
+		if (all != null) return;
+		Path set = ReferenceData.set("bbbc039-u2os-nuclei");
+		all = BoxedImages.find(set.resolve("images"), set.resolve("boxes.csv"));
+		names = new ArrayList<>(all.keySet());
+		names.sort(null);
+	}
+
+	static Learner.Result learn(Map<Path, List<Box>> learn, Supervision.BackgroundMode mode) {
+		LearnSettings s = new LearnSettings();
+		s.steps = STEPS;
+		s.minutes = 0;
+		s.background = mode;
+		return new Learner(s).learn(Jobs.trainingImages(learn), Progress.silent());
+	}
+
+	/** Per-object Dice on the 5 held-out images, with all their boxes. */
+	static Scores.Tally heldOut(ModelRunner runner, boolean baseline, Scores.Tally box) {
+		Path set = ReferenceData.set("bbbc039-u2os-nuclei");
+		Scores.Tally model = new Scores.Tally();
+		for (Path p : names.subList(5, names.size())) {
+			PlanarImage im = ImageFiles.read(p);
+			int[] ref = ImageFiles.readLabels(set.resolve("labels").resolve(p.getFileName()), null);
+			float[] prob = runner.probability(im, 1, null);
+			model.add(Scores.compare(BoxMasks.make(prob, im.width, im.height, all.get(p), 0.5).labels(), ref));
+			if (baseline) box.add(Scores.compare(Baselines.boxItself(im, all.get(p)), ref));
+		}
+		return model;
+	}
 
 	@Test
+	@Order(1)
 	void masksOfUnseenImagesBeatTheBoxAndTheEllipse() {
-		Path set = ReferenceData.set("bbbc039-u2os-nuclei");
-		Map<Path, List<Box>> all = BoxedImages.find(set.resolve("images"), set.resolve("boxes.csv"));
-		List<Path> names = new ArrayList<>(all.keySet());
-		names.sort(null);
+		load();
 		Map<Path, List<Box>> learn = new LinkedHashMap<>();
 		for (Path p : names.subList(0, 5)) learn.put(p, all.get(p));
-		LearnSettings s = new LearnSettings();
-		s.steps = 200; // a bounded budget: about a minute and a half on 2 cores
-		s.minutes = 0;
-		Scores.Tally model = new Scores.Tally(), box = new Scores.Tally();
-		try (Learner.Result r = new Learner(s).learn(Jobs.trainingImages(learn), Progress.silent());
-			ModelRunner runner = new ModelRunner(r.header(), r.net(), r.manager())) {
-			for (Path p : names.subList(5, names.size())) {
-				PlanarImage im = ImageFiles.read(p);
-				int[] ref = ImageFiles.readLabels(set.resolve("labels").resolve(p.getFileName()), null);
-				float[] prob = runner.probability(im, 1, null);
-				model.add(Scores.compare(BoxMasks.make(prob, im.width, im.height, all.get(p), 0.5).labels(), ref));
-				box.add(Scores.compare(Baselines.boxItself(im, all.get(p)), ref));
-			}
+		Scores.Tally box = new Scores.Tally();
+		Scores.Tally model;
+		try (Learner.Result r = learn(learn, Supervision.BackgroundMode.FULL); ModelRunner runner = new ModelRunner(r.header(), r.net(), r.manager())) {
+			model = heldOut(runner, true, box);
 		}
+		fullDice = model.objectDice();
 		System.out.printf("BBBC039 held-out per-object Dice: corral %.4f, box itself %.4f%n", model.objectDice(), box.objectDice());
 		assertTrue(box.objectDice() < 0.87, "the box baseline is computed as documented: " + box.objectDice());
 		assertTrue(model.objectDice() >= 0.92, "per-object Dice " + model.objectDice() + " must clearly beat the ellipse (0.879)");
+	}
+
+	/**
+	 * Half the objects boxed (every other box), learned with a background ring around each box:
+	 * the held-out masks stay within {@link #PARTIAL_TOLERANCE} of the fully boxed run, and the
+	 * unboxed objects of the learning images are not learned as background.
+	 */
+	@Test
+	@Order(2)
+	void halfBoxedImagesLearnNearlyAsWellAndKeepTheirUnboxedObjects() {
+		load();
+		Path set = ReferenceData.set("bbbc039-u2os-nuclei");
+		Map<Path, List<Box>> half = new LinkedHashMap<>();
+		for (Path p : names.subList(0, 5)) {
+			List<Box> kept = new ArrayList<>();
+			for (Box b : all.get(p)) if (b.index() % 2 == 1) kept.add(b);
+			half.put(p, kept);
+		}
+		double unboxedProbability = 0;
+		int unboxed = 0;
+		Scores.Tally model;
+		try (Learner.Result r = learn(half, Supervision.BackgroundMode.RING); ModelRunner runner = new ModelRunner(r.header(), r.net(), r.manager())) {
+			model = heldOut(runner, false, null);
+			for (Path p : names.subList(0, 5)) {
+				PlanarImage im = ImageFiles.read(p);
+				int[] ref = ImageFiles.readLabels(set.resolve("labels").resolve(p.getFileName()), null);
+				float[] prob = runner.probability(im, 1, null);
+				double[] sum = new double[all.get(p).size() + 1];
+				long[] n = new long[sum.length];
+				for (int i = 0; i < ref.length; i++) {
+					sum[ref[i]] += prob[i];
+					n[ref[i]]++;
+				}
+				for (Box b : all.get(p)) {
+					if (b.index() % 2 == 1) continue; // boxed
+					assertEquals(b.width() * b.height() >= n[b.index()], true, "label k is the object of box k");
+					unboxedProbability += sum[b.index()] / n[b.index()];
+					unboxed++;
+				}
+			}
+		}
+		double meanUnboxed = unboxedProbability / unboxed;
+		System.out.printf("BBBC039 half boxed: held-out per-object Dice %.4f (fully boxed %.4f); mean probability inside the %d unboxed objects %.3f%n",
+			model.objectDice(), fullDice, unboxed, meanUnboxed);
+		if (!Double.isNaN(fullDice))
+			assertTrue(model.objectDice() >= fullDice - PARTIAL_TOLERANCE, "half boxed " + model.objectDice() + " vs fully boxed " + fullDice);
+		assertTrue(model.objectDice() >= 0.90, "half boxed per-object Dice " + model.objectDice());
+		assertTrue(meanUnboxed > 0.6, "unboxed objects must not be learned as background: mean probability " + meanUnboxed);
 	}
 }
