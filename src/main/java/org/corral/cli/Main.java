@@ -50,7 +50,9 @@ public final class Main {
 		  --band W         band width w of the tightness prior (default 5)
 		  --margin PX      lines skipped at each box side, for loosely drawn boxes (default 0)
 		  --width C        network width, channels at full resolution (default 16)
-		  --partial        only some objects are boxed: take just a ring around each box as background
+		  --all-boxed      every object of every image is boxed: all pixels outside the boxes are
+		                   background (default: only a ring around each box, safe when some objects
+		                   are not boxed)
 		  --threads N      CPU threads (default: all)
 		""";
 
@@ -78,13 +80,15 @@ public final class Main {
 		switch (job) {
 			case "learn" -> {
 				if (help) return print(LEARN_HELP);
-				Args a = new Args(job, argv, 1, Set.of("partial"));
+				Args a = new Args(job, argv, 1, Set.of("partial", "all-boxed"));
 				threads(a);
 				Path images = a.path("images", true), model = a.path("model", true), boxes = a.path("boxes", false);
 				LearnSettings s = settings(a);
 				a.checkAllUsed();
 				Map<Path, List<Box>> boxed = BoxedImages.find(images, boxes);
 				AtomicBoolean stop = cancelOnInterrupt();
+				System.out.println(s.background == Supervision.BackgroundMode.FULL ? "background: every pixel outside the boxes (--all-boxed)"
+					: "background: a ring around each box, as some objects may be unboxed (give --all-boxed when every object is boxed)");
 				Learner.Result r = Jobs.learn(boxed, s, model, printer(stop), note -> System.out.println("note: " + note));
 				System.out.printf(Locale.ROOT, "model written to %s (%s steps, %.3f s/step, constraints met %.3f)%n", model, r.header().counts.get("steps"),
 					r.header().counts.get("secondsPerStep"), r.header().scores.getOrDefault("constraintsMet", Double.NaN));
@@ -148,7 +152,7 @@ public final class Main {
 			}
 			case "demo" -> {
 				if (help) return print("corral demo [--out DIR] [--steps N] [learn options]\n  learns from the boxes of test-images/ (default 150 steps), masks them, scores them against\n  test-images/reference (default out: corral-demo-output)\n");
-				Args a = new Args(job, argv, 1, Set.of("partial"));
+				Args a = new Args(job, argv, 1, Set.of("partial", "all-boxed"));
 				threads(a);
 				Path out = Path.of(a.str("out", "corral-demo-output"));
 				LearnSettings s = settings(a, DEMO_STEPS);
@@ -158,7 +162,7 @@ public final class Main {
 			}
 			case "benchmark" -> {
 				if (help) return print("corral benchmark --data DIR [--data2 DIR] [--grow 0,2,4,8] [learn options]\n  each DIR is a reference set (images/, labels/, boxes.csv): learn on the first 5 images, mask the other 5;\n  prints the figures of Corral, the box itself and Otsu in the box; with boxes (tight) and without (whole image).\n  --grow LIST  instead: per-object Dice with every box enlarged by each amount, without and with --margin\n");
-				Args a = new Args(job, argv, 1, Set.of("partial"));
+				Args a = new Args(job, argv, 1, Set.of("partial", "all-boxed"));
 				threads(a);
 				List<Path> sets = new java.util.ArrayList<>();
 				sets.add(a.path("data", true));
@@ -230,7 +234,8 @@ public final class Main {
 		s.pairTolerance = a.number("pair-tolerance", s.pairTolerance);
 		s.weights = new org.corral.loss.LossWeights(a.number("w-band", s.weights.band()), a.number("w-fill", s.weights.fill()),
 			a.number("w-pair", s.weights.pairwise()));
-		if (a.has("partial")) s.background = Supervision.BackgroundMode.RING;
+		if (a.has("all-boxed")) s.background = Supervision.BackgroundMode.FULL;
+		if (a.has("partial")) s.background = Supervision.BackgroundMode.RING; // the default, named for scripts
 		s.validate();
 		return s;
 	}

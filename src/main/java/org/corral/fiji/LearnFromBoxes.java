@@ -51,8 +51,8 @@ public class LearnFromBoxes implements Command {
 	@Parameter(label = "Margin for loose boxes (px)", min = "0", persist = false)
 	int margin = 0;
 
-	@Parameter(label = "Only some objects are boxed", persist = false)
-	boolean partial = false;
+	@Parameter(label = "Every object is boxed (else: background only in a ring around each box)", persist = false)
+	boolean complete = false;
 
 	@Parameter(label = "Live plot", persist = false)
 	boolean plot = true;
@@ -71,7 +71,7 @@ public class LearnFromBoxes implements Command {
 		s.band = band;
 		s.margin = margin;
 		s.minutes = 0; // in ImageJ the user cancels with Esc; the step count keeps results reproducible
-		if (partial) s.background = Supervision.BackgroundMode.RING;
+		s.background = complete ? Supervision.BackgroundMode.FULL : Supervision.BackgroundMode.RING;
 		if (model == null) throw new CorralException("Choose where to save the model");
 		List<TrainingImage> images = new ArrayList<>();
 		switch (source) {

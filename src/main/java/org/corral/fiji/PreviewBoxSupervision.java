@@ -34,8 +34,8 @@ public class PreviewBoxSupervision implements Command {
 	@Parameter(label = "Margin for loose boxes (px)", min = "0", persist = false)
 	int margin = 0;
 
-	@Parameter(label = "Only some objects are boxed", persist = false)
-	boolean partial = false;
+	@Parameter(label = "Every object is boxed (else: background only in a ring around each box)", persist = false)
+	boolean complete = false;
 
 	@Parameter(type = ItemIO.OUTPUT)
 	String summary;
@@ -45,7 +45,7 @@ public class PreviewBoxSupervision implements Command {
 		ImageJBoxes.Found f = ImageJBoxes.of(image);
 		int w = image.getWidth(), h = image.getHeight();
 		Supervision s = Supervision.builder(w, h).optBand(band).optMargin(margin).optRegion(f.region())
-			.optBackground(partial && f.region() == null ? Supervision.BackgroundMode.RING : Supervision.BackgroundMode.FULL).build(f.boxes());
+			.optBackground(complete || f.region() != null ? Supervision.BackgroundMode.FULL : Supervision.BackgroundMode.RING).build(f.boxes());
 		ColorProcessor tint = new ColorProcessor(w, h);
 		int[] px = (int[]) tint.getPixels();
 		for (int i = 0; i < px.length; i++) px[i] = s.background[i] != 0 ? 0x2060ff : 0;
@@ -83,7 +83,7 @@ public class PreviewBoxSupervision implements Command {
 		image.setOverlay(ov);
 		summary = String.format(java.util.Locale.ROOT, "%d boxes, %d band constraints, %.1f %% of pixels known background (%s)", s.boxes.size(),
 			s.count(Constraint.Kind.BAND), 100.0 * s.knownBackground() / (w * (double) h),
-			f.region() != null ? "inside the annotated region" : partial ? "a ring around each box" : "everything outside the boxes");
+			f.region() != null ? "inside the annotated region" : complete ? "everything outside the boxes" : "a ring around each box");
 		ij.IJ.showStatus("Corral: " + summary);
 	}
 }

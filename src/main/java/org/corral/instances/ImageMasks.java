@@ -32,6 +32,22 @@ public final class ImageMasks {
 	 * @param split      false = plain connected components, no watershed
 	 */
 	public static Result make(float[] prob, int w, int h, double objectSize, double threshold, boolean split) {
+		return make(prob, w, h, objectSize, threshold, split ? PROMINENCE : 0);
+	}
+
+	/**
+	 * Seed prominence: a fraction of the object size, at least {@link #MIN_PROMINENCE} px. Measured
+	 * on the held-out developer images (whole-image F1 at IoU 0.5 for 0.06 / 0.02 of the size: BBBC039
+	 * 0.934 / 0.942, histology 0.760 / 0.798); a distance x probability landscape did worse.
+	 */
+	public static final double PROMINENCE = 0.02, MIN_PROMINENCE = 0.7;
+
+	/**
+	 * @param prominence 0 = plain connected components; else the seed prominence as a fraction of
+	 *                   {@code objectSize}
+	 */
+	public static Result make(float[] prob, int w, int h, double objectSize, double threshold, double prominence) {
+		boolean split = prominence > 0;
 		ByteProcessor bin = new ByteProcessor(w, h);
 		for (int i = 0; i < prob.length; i++) if (prob[i] >= threshold) bin.set(i, 255);
 		boolean[] mask = new boolean[w * h];
@@ -44,8 +60,7 @@ public final class ImageMasks {
 			for (int i = 0; i < mask.length; i++) bin.set(i, mask[i] ? 255 : 0);
 			FloatProcessor edm = new EDM().makeFloatEDM(bin, 0, false);
 			new GaussianBlur().blurGaussian(edm, 1.0, 1.0, 0.01); // tames pixel-level ridges
-			double prominence = Math.max(0.7, 0.06 * size);
-			ByteProcessor seg = new MaximumFinder().findMaxima(edm, prominence, ImageProcessor.NO_THRESHOLD, MaximumFinder.SEGMENTED, false, true);
+			ByteProcessor seg = new MaximumFinder().findMaxima(edm, Math.max(MIN_PROMINENCE, prominence * size), ImageProcessor.NO_THRESHOLD, MaximumFinder.SEGMENTED, false, true);
 			boolean[] cells = new boolean[w * h];
 			for (int i = 0; i < cells.length; i++) cells[i] = mask[i] && seg.get(i) != 0;
 			lab = Components.label(cells, w, h, cnt);

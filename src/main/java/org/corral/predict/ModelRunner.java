@@ -81,8 +81,21 @@ public final class ModelRunner implements AutoCloseable {
 		return v.length % 2 == 1 ? v[v.length / 2] : (v[v.length / 2 - 1] + v[v.length / 2]) / 2;
 	}
 
+	/**
+	 * Test-time flips for masks inside boxes: averaging the four mirrored predictions lifted the
+	 * per-object Dice on the held-out histology images from 0.887 to 0.894; it did not help the
+	 * whole-image masks, which therefore use one pass (README, "How the defaults were chosen").
+	 */
+	public static final int BOX_FLIPS = 4, IMAGE_FLIPS = 1;
+
 	/** Probability map of a raw image, at the image's own size; {@code scale} from {@link #scaleFor}. */
 	public float[] probability(PlanarImage raw, double scale, BooleanSupplier cancelled) {
+		return probability(raw, scale, cancelled, IMAGE_FLIPS);
+	}
+
+	/** As {@link #probability(PlanarImage, double, BooleanSupplier)}, averaged over {@code flips} mirrored passes (1, 2 or 4). */
+	public synchronized float[] probability(PlanarImage raw, double scale, BooleanSupplier cancelled, int flips) {
+		predictor.optFlips(flips);
 		if (raw.nChannels() != header.inChannels)
 			throw new CorralException("The model was learned on " + header.inChannels + "-channel images; this image has " + raw.nChannels());
 		if (constant(raw)) return new float[raw.width * raw.height]; // no contrast, no objects

@@ -23,6 +23,7 @@ public final class TiledPredictor {
 	private final UNet net;
 	private final NDManager manager;
 	private final int tile, overlap;
+	private int flips = 1;
 
 	public TiledPredictor(UNet net, NDManager manager, int tile, int overlap) {
 		if (tile < 16 || overlap < 0) throw new IllegalArgumentException("tile must be >= 16 and overlap >= 0");
@@ -35,6 +36,16 @@ public final class TiledPredictor {
 	/** Tiles of at most 1024 x 1024 pixels (about 0.5 GB of activations for the default network). */
 	public TiledPredictor(UNet net, NDManager manager) {
 		this(net, manager, 1024, 32);
+	}
+
+	/**
+	 * Test-time flips: 1 = none, 2 = also mirrored left-right, 4 = also top-bottom and both; the
+	 * probabilities are averaged (common practice; it smooths the network's orientation bias).
+	 */
+	public TiledPredictor optFlips(int n) {
+		if (n != 1 && n != 2 && n != 4) throw new IllegalArgumentException("flips must be 1, 2 or 4");
+		this.flips = n;
+		return this;
 	}
 
 	/** Probabilities in [0, 1], raster order. {@code im} must already be normalised. */
@@ -66,10 +77,19 @@ public final class TiledPredictor {
 							for (int x = 0; x < iw; x++) in[base + y * iw + x] = src[sy * w + PlanarImage.mirror(ox + x, w)];
 						}
 					}
-					try (NDManager sub = manager.newSubManager()) {
-						NDArray x = sub.create(in, new Shape(1, im.nChannels(), ih, iw));
-						NDArray logits = net.forward(new ParameterStore(sub, false), new NDList(x), false).singletonOrThrow();
-						float[] p = ai.djl.nn.Activation.sigmoid(logits).toFloatArray();
+					float[] p = new float[iw * ih];
+					for (int f = 0; f < flips; f++)
+						try (NDManager sub = manager.newSubManager()) {
+							// test-time flips: predict the mirrored tile, mirror back, average
+							int[] axes = f == 0 ? new int[0] : f == 1 ? new int[] {3} : f == 2 ? new int[] {2} : new int[] {2, 3};
+							NDArray x = sub.create(in, new Shape(1, im.nChannels(), ih, iw));
+							if (axes.length > 0) x = x.flip(axes);
+							NDArray logits = net.forward(new ParameterStore(sub, false), new NDList(x), false).singletonOrThrow();
+							if (axes.length > 0) logits = logits.flip(axes);
+							float[] pf = ai.djl.nn.Activation.sigmoid(logits).toFloatArray();
+							for (int i = 0; i < p.length; i++) p[i] += pf[i] / flips;
+						}
+					{
 						int dx = tx - ox, dy = ty - oy;
 						for (int y = 0; y < ch; y++)
 							System.arraycopy(p, (y + dy) * iw + dx, out, (ty + y) * w + tx, cw);

@@ -23,7 +23,11 @@ public final class LearnSettings {
 	public double tStart = 5, tMax = 30, tRamp = 0.6;
 	/** Two neighbours are "similar" for the pairwise term when their smoothed intensities differ by less. */
 	public double pairTolerance = 0.06;
-	public BackgroundMode background = BackgroundMode.FULL;
+	/**
+	 * Where background is known. The safe default, RING, works whether or not every object is boxed;
+	 * FULL (every object of each image is boxed) also uses the pixels far from the boxes.
+	 */
+	public BackgroundMode background = BackgroundMode.RING;
 	/** Print/notify progress every this many steps. */
 	public int reportEvery = 10;
 

@@ -85,7 +85,7 @@ public final class Benchmark {
 				PlanarImage im = ImageFiles.read(e.getKey());
 				int[] ref = ImageFiles.readLabels(labels.resolve(e.getKey().getFileName()), null);
 				long p0 = System.nanoTime();
-				float[] prob = runner.probability(im, runner.scaleFor(ModelRunner.medianSide(e.getValue())), null);
+				float[] prob = runner.probability(im, runner.scaleFor(ModelRunner.medianSide(e.getValue())), null, ModelRunner.BOX_FLIPS);
 				predSeconds += (System.nanoTime() - p0) / 1e9;
 				pixels += im.pixels();
 				model.add(Scores.compare(BoxMasks.make(prob, im.width, im.height, e.getValue(), 0.5).labels(), ref));

@@ -97,7 +97,7 @@ public final class Jobs {
 			int[] zt = ImageFiles.zt(imp, p);
 			PlanarImage raw = ImageFiles.planes(imp, zt[0], zt[1]);
 			if (first == null) first = raw;
-			float[] prob = model.probability(raw, model.scaleFor(ModelRunner.medianSide(bs)), null);
+			float[] prob = model.probability(raw, model.scaleFor(ModelRunner.medianSide(bs)), null, ModelRunner.BOX_FLIPS);
 			BoxMasks.Result r = BoxMasks.make(prob, w, h, bs, 0.5);
 			int[] global = new int[bs.size()];
 			for (int k = 0; k < bs.size(); k++) {

@@ -121,7 +121,7 @@ class CommandsTest {
 		assertEquals(1.0, self.getValue("mean_ap", 0), 1e-12);
 
 		ImagePlus boxed = boxed("seedcoat-04.tif");
-		String summary = (String) run(PreviewBoxSupervision.class, Map.of("image", boxed, "band", "4", "margin", "0", "partial", "false")).getOutput("summary");
+		String summary = (String) run(PreviewBoxSupervision.class, Map.of("image", boxed, "band", "4", "margin", "0", "complete", "false")).getOutput("summary");
 		assertTrue(summary.startsWith(demoBoxes.get("seedcoat-04.tif").size() + " boxes"), summary);
 		assertInstanceOf(ImageRoi.class, boxed.getOverlay().get(0));
 		// the preview keeps the boxes readable for learning
