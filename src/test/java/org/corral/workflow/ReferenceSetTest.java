@@ -13,6 +13,7 @@ import org.corral.ReferenceData;
 import org.corral.boxes.Box;
 import org.corral.image.PlanarImage;
 import org.corral.instances.BoxMasks;
+import org.corral.instances.ImageMasks;
 import org.corral.io.ImageFiles;
 import org.corral.predict.ModelRunner;
 import org.corral.score.Scores;
@@ -72,19 +73,31 @@ class ReferenceSetTest {
 
 	@Test
 	@Order(1)
-	void masksOfUnseenImagesBeatTheBoxAndTheEllipse() {
+	void masksOfUnseenImagesBeatTheBoxAndTheEllipseAndWholeImagesBeatComponents() {
 		load();
 		Map<Path, List<Box>> learn = new LinkedHashMap<>();
 		for (Path p : names.subList(0, 5)) learn.put(p, all.get(p));
-		Scores.Tally box = new Scores.Tally();
+		Scores.Tally box = new Scores.Tally(), whole = new Scores.Tally(), components = new Scores.Tally();
 		Scores.Tally model;
+		Path set = ReferenceData.set("bbbc039-u2os-nuclei");
 		try (Learner.Result r = learn(learn, Supervision.BackgroundMode.FULL); ModelRunner runner = new ModelRunner(r.header(), r.net(), r.manager())) {
 			model = heldOut(runner, true, box);
+			// the same images without boxes: watershed instances vs plain connected components
+			for (Path p : names.subList(5, names.size())) {
+				PlanarImage im = ImageFiles.read(p);
+				int[] ref = ImageFiles.readLabels(set.resolve("labels").resolve(p.getFileName()), null);
+				WholeImage.Outcome o = WholeImage.mask(runner, im, 0);
+				whole.add(Scores.compare(o.result().labels(), ref));
+				components.add(Scores.compare(ImageMasks.make(o.probability(), im.width, im.height, r.header().objectSize / o.scale(), 0.5, false).labels(), ref));
+			}
 		}
 		fullDice = model.objectDice();
-		System.out.printf("BBBC039 held-out per-object Dice: corral %.4f, box itself %.4f%n", model.objectDice(), box.objectDice());
+		System.out.printf("BBBC039 held-out per-object Dice: corral %.4f, box itself %.4f; no boxes: F1@0.5 %.4f (connected components %.4f), mean AP %.4f%n",
+			model.objectDice(), box.objectDice(), whole.f1(0.5), components.f1(0.5), whole.meanAP());
 		assertTrue(box.objectDice() < 0.87, "the box baseline is computed as documented: " + box.objectDice());
 		assertTrue(model.objectDice() >= 0.92, "per-object Dice " + model.objectDice() + " must clearly beat the ellipse (0.879)");
+		assertTrue(whole.f1(0.5) > components.f1(0.5) + 0.03, "watershed F1 " + whole.f1(0.5) + " vs connected components " + components.f1(0.5));
+		assertTrue(whole.f1(0.5) >= 0.88, "whole-image F1 at IoU 0.5: " + whole.f1(0.5));
 	}
 
 	/**
