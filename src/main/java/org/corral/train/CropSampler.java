@@ -86,7 +86,7 @@ final class CropSampler {
 			if (x0 < 0 || y0 < 0 || x0 + b.width() > s || y0 + b.height() > s) continue;
 			inCrop.add(transform(d, new Box(b.index(), x0, y0, b.width(), b.height()), s));
 		}
-		List<Constraint> cons = Supervision.builder(s, s).optBand(settings.band).optMargin(settings.margin)
+		List<Constraint> cons = Supervision.builder(s, s).optBand(settings.band).optMargin(Math.min(1, settings.margin))
 			.optFill(settings.fillMin, settings.fillMax).build(inCrop).constraints;
 		float[] ph = new float[s * (s - 1)], pv = new float[(s - 1) * s];
 		double tol2 = settings.pairTolerance * settings.pairTolerance * nc;

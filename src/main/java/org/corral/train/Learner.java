@@ -31,6 +31,7 @@ import org.corral.image.Resample;
 import org.corral.loss.BoxLoss;
 import org.corral.model.ModelHeader;
 import org.corral.net.UNet;
+import org.corral.supervision.BoxTightening;
 import org.corral.supervision.Supervision;
 
 /**
@@ -66,12 +67,14 @@ public final class Learner {
 			if (ti.image().nChannels() != nc)
 				throw new CorralException("Image " + ti.name() + " has " + ti.image().nChannels() + " channel(s), the first image " + nc + "; all learning images need the same channels");
 			PlanarImage norm = Normalise.percentiles(ti.image());
-			Supervision sup = Supervision.builder(norm.width, norm.height).optBand(s.band).optMargin(s.margin)
+			// loose boxes are first tightened to the objects inside them; a line of slack remains
+			List<Box> boxes = BoxTightening.tighten(norm, ti.boxes(), s.margin);
+			Supervision sup = Supervision.builder(norm.width, norm.height).optBand(s.band).optMargin(Math.min(1, s.margin))
 				.optFill(s.fillMin, s.fillMax).optBackground(ti.region() != null ? Supervision.BackgroundMode.FULL : s.background)
-				.optRegion(ti.region()).build(ti.boxes());
+				.optRegion(ti.region()).build(boxes);
 			if (sup.boxes.isEmpty()) continue;
 			nBoxes += sup.boxes.size();
-			for (Box b : sup.boxes) sides.add((b.width() + b.height()) / 2.0);
+			for (Box b : ti.boxes()) sides.add((b.width() + b.height()) / 2.0); // as drawn: masking sees boxes drawn alike
 			prepared.add(new CropSampler.Prepared(ti.name(), norm, Resample.mean3(norm), sup));
 		}
 		if (nBoxes == 0) throw new CorralException("Nothing to learn from: none of the " + images.size() + " image(s) has a box inside it");

@@ -76,7 +76,12 @@ public final class Jobs {
 		if (nb == 0 && given > 0) throw new CorralException("Nothing to learn from: none of the " + given + " box(es) lies inside its image");
 		if (nb == 0) throw new CorralException("No boxes to learn from: give a box file or ROI sets with at least one rectangle");
 		Learner.Result r = new Learner(settings).learn(images, progress);
-		ModelFile.write(modelFile, r.header(), r.net());
+		try {
+			ModelFile.write(modelFile, r.header(), r.net());
+		} catch (RuntimeException e) {
+			r.close();
+			throw e;
+		}
 		return r;
 	}
 
