@@ -33,9 +33,13 @@ public final class TiledPredictor {
 		this.overlap = overlap;
 	}
 
-	/** Tiles of at most 1024 x 1024 pixels (about 0.5 GB of activations for the default network). */
+	/**
+	 * Tiles of at most 640 x 640 pixels: with the context, a full-resolution feature map of the
+	 * default network stays under 32 MiB, the largest buffer glibc can be told to reuse instead of
+	 * mapping it afresh (fresh pages cost about 7 us each on these machines: measured, PLATFORM.md).
+	 */
 	public TiledPredictor(UNet net, NDManager manager) {
-		this(net, manager, 1024, 32);
+		this(net, manager, 640, 32);
 	}
 
 	/**
