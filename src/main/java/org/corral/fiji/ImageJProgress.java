@@ -73,7 +73,12 @@ public final class ImageJProgress implements Progress {
 		p.addPoints(step, met, Plot.LINE);
 		p.setColor(Color.black);
 		p.addLegend("total loss\nbackground\npairwise\nbox constraints (barrier)\nfraction of constraints met");
-		p.setLimitsToFit(false);
+		double low = 0;
+		for (int i = 0; i < n; i++) low = Math.min(low, Math.min(cons[i], Math.min(loss[i], bg[i])));
+		double high = 1;
+		for (int i = 0; i < n; i++) high = Math.max(high, Math.max(loss[i], Math.max(bg[i], pair[i])));
+		// room above 1 so the fraction met (usually 1) shows as a line, not as the frame
+		p.setLimits(step[0], step[n - 1], low - 0.05, high + 0.08);
 		return p;
 	}
 
