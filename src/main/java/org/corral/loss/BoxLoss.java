@@ -19,7 +19,7 @@ import org.corral.supervision.Constraint;
  * averaged per kind, so the weights do not depend on how many boxes a crop holds;</li>
  * <li>pairwise: neighbouring pixels of similar intensity, one of them in a box, should get the same
  * label: -log(s_p s_q + (1-s_p)(1-s_q)) (the pairwise affinity loss of "BoxInst: High-Performance
- * Instance Segmentation with Box Annotations", Tian et al., CVPR 2021).</li>
+ * Instance Segmentation with Box Annotations", CVPR 2021).</li>
  * </ul>
  * All constraint sums come from one integral image of s, so their cost does not grow with box size.
  */

@@ -6,7 +6,7 @@ package org.corral.loss;
  *
  * @param band     tightness prior (band form), weight of the mean barrier over all bands
  * @param fill     fill-fraction bounds (box-size bound and our lower bound), weight of their mean barrier
- * @param pairwise pairwise term (BoxInst, Tian et al., CVPR 2021), weight
+ * @param pairwise pairwise term ("BoxInst: High-Performance Instance Segmentation with Box Annotations", CVPR 2021), weight
  */
 public record LossWeights(double band, double fill, double pairwise) {
 	public static LossWeights defaults() {
