@@ -12,8 +12,8 @@ import java.util.List;
 
 /**
  * Instances on an image without boxes: threshold the probability map, then split touching objects
- * with a seeded watershed on the distance transform (the classic binary watershed, after Vincent
- * and Soille, "Watersheds in digital spaces", IEEE PAMI 1991; seeds = distance maxima that stand
+ * with a seeded watershed on the distance transform (the classic binary watershed, after
+ * "Watersheds in digital spaces", IEEE PAMI 1991; seeds = distance maxima that stand
  * out by more than a prominence), using ImageJ's EDM and MaximumFinder. Objects far smaller than
  * the learned object size are dropped as specks.
  */
