@@ -54,10 +54,6 @@ public record Box(int index, int x, int y, int width, int height, int slice, Str
 		return new Box(index, x - by, y - by, width + 2 * by, height + 2 * by, slice, name);
 	}
 
-	public Box withIndex(int i) {
-		return new Box(i, x, y, width, height, slice, name);
-	}
-
 	public boolean contains(int px, int py) {
 		return px >= x && px < x1() && py >= y && py < y1();
 	}

@@ -48,7 +48,6 @@ public final class ImageJOutputs {
 	 */
 	public static void showOutlines(ImagePlus source, List<Roi> outlines, boolean keep) {
 		Overlay ov = keep && source.getOverlay() != null ? source.getOverlay() : new Overlay();
-		if (!keep) ov.clear();
 		for (Roi r : outlines) {
 			Roi c = (Roi) r.clone();
 			c.setStrokeColor(new Color(Overlays.colour(labelOf(r))));

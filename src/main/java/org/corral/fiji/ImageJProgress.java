@@ -86,10 +86,6 @@ public final class ImageJProgress implements Progress {
 		return history;
 	}
 
-	public ImagePlus plotImage() {
-		return plotImage;
-	}
-
 	@Override
 	public boolean cancelled() {
 		return cancelled || IJ.escapePressed() || Thread.currentThread().isInterrupted();

@@ -25,10 +25,6 @@ public final class PlanarImage {
 		return channels.length;
 	}
 
-	public float get(int c, int x, int y) {
-		return channels[c][y * width + x];
-	}
-
 	/** This image's pixel width in micrometres, or 0 when it is not calibrated in a known length unit. */
 	public double micronsPerPixel() {
 		return pixelWidth > 0 ? pixelWidth * micronsPer(unit) : 0;

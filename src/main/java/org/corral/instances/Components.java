@@ -84,7 +84,4 @@ public final class Components {
 		return false;
 	}
 
-	static boolean[] copy(boolean[] m) {
-		return Arrays.copyOf(m, m.length);
-	}
 }

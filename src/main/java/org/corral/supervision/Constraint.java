@@ -38,7 +38,4 @@ public record Constraint(Kind kind, int box, int x0, int y0, int x1, int y1, flo
 		return sign * (s - target) / norm;
 	}
 
-	public Constraint shifted(int dx, int dy) {
-		return new Constraint(kind, box, x0 + dx, y0 + dy, x1 + dx, y1 + dy, target, sign, norm);
-	}
 }
