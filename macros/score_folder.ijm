@@ -1,4 +1,4 @@
-// Corral: score every label image of a folder against the reference label image of the same name.
+// Corral: score every label image of a folder (NAME.labels.tif) against the reference label image NAME.tif.
 // Argument: "label folder|reference folder"
 // Result: one row per image in a table "Corral folder scores", and the mean per-object Dice printed.
 a = split(getArgument(), "|");
@@ -11,10 +11,11 @@ Table.create("Corral folder scores");
 row = 0; sum = 0;
 for (i = 0; i < list.length; i++) {
 	if (!endsWith(list[i], ".tif")) continue;
-	if (!File.exists(labels + list[i])) { print("missing label image for " + list[i]); continue; }
-	open(labels + list[i]); lab = getTitle(); rename("labels-" + list[i]); lab = getTitle();
+	base = substring(list[i], 0, lengthOf(list[i]) - 4);
+	if (!File.exists(labels + base + ".labels.tif")) { print("missing label image for " + list[i]); continue; }
+	open(labels + base + ".labels.tif"); rename("labels-" + list[i]); lab = getTitle();
 	open(refs + list[i]); rename("reference-" + list[i]); ref = getTitle();
-	run("Score Against Reference", "labels=[" + lab + "] reference=[" + ref + "]");
+	run("Corral Score Against Reference", "labels=[" + lab + "] reference=[" + ref + "]");
 	d = getResult("object_dice", 0);
 	Table.set("image", row, list[i], "Corral folder scores");
 	Table.set("object_dice", row, d, "Corral folder scores");

@@ -12,12 +12,15 @@ import org.corral.CorralException;
 import org.corral.boxes.Box;
 import org.corral.predict.ModelRunner;
 import org.corral.supervision.Supervision;
+import org.corral.supervision.SupervisionSettings;
 import org.corral.train.LearnSettings;
 import org.corral.train.Learner;
 import org.corral.train.Progress;
 import org.corral.workflow.Benchmark;
 import org.corral.workflow.BoxedImages;
+import org.corral.workflow.Adaptation;
 import org.corral.workflow.Demo;
+import org.corral.workflow.FolderRun;
 import org.corral.workflow.Jobs;
 
 /** The headless command line: {@code corral <job> [--option value ...]}. */
@@ -37,24 +40,24 @@ public final class Main {
 		  tour        on a display: box ten demo objects in the ROI Manager, learn, mask, take screenshots
 		""";
 
-	static final String LEARN_HELP = """
+	static final String LEARN_HELP = String.format(java.util.Locale.ROOT, """
 		corral learn --images DIR --model FILE [--boxes FILE.csv] [options]
 		  --images DIR     folder of images (TIFF, PNG, ...)
 		  --boxes FILE     box CSV (header row; columns image,x,y,width,height); without it each
 		                   image's ROI set NAME.zip / NAME.rois.zip / NAME.roi is read
 		  --model FILE     model file to write (written only when learning completes)
-		  --steps N        learning steps (default 400); same steps + seed + threads = same model
+		  --steps N        learning steps (default %d); same steps + seed + threads = same model
 		  --minutes M      time cap (default 5); a run that would take longer is shortened to fit,
 		                   and is then no longer reproducible (the model header says so)
-		  --seed S         random seed (default 1)
-		  --band W         band width w of the tightness prior (default 5)
+		  --seed S         random seed (default %d)
+		  --band W         band width w of the tightness prior (default %d)
 		  --margin PX      lines skipped at each box side, for loosely drawn boxes (default 0)
 		  --width C        network width, channels at full resolution (default 16)
 		  --all-boxed      every object of every image is boxed: all pixels outside the boxes are
 		                   background (default: only a ring around each box, safe when some objects
 		                   are not boxed)
 		  --threads N      CPU threads (default: all)
-		""";
+		""", LearnSettings.DEFAULT_STEPS, LearnSettings.DEFAULT_SEED, SupervisionSettings.DEFAULT_BAND);
 
 	public static void main(String[] argv) {
 		int code;
@@ -89,54 +92,69 @@ public final class Main {
 				AtomicBoolean stop = cancelOnInterrupt();
 				System.out.println(s.background == Supervision.BackgroundMode.FULL ? "background: every pixel outside the boxes (--all-boxed)"
 					: "background: a ring around each box, as some objects may be unboxed (give --all-boxed when every object is boxed)");
-				Learner.Result r = Jobs.learn(boxed, s, model, printer(stop), note -> System.out.println("note: " + note));
+				Learner.Result r = Jobs.learn(boxed, boxes, s, model, printer(stop), note -> System.out.println("note: " + note));
 				System.out.printf(Locale.ROOT, "model written to %s (%s steps, %.3f s/step, constraints met %.3f)%n", model, r.header().counts.get("steps"),
 					r.header().counts.get("secondsPerStep"), r.header().scores.getOrDefault("constraintsMet", Double.NaN));
 				r.close();
 				return 0;
 			}
 			case "mask-boxes" -> {
-				if (help) return print("""
-					corral mask-boxes --images DIR --model FILE --out DIR [--boxes FILE.csv] [--threads N]
-					  writes OUT/NAME.tif (label k = mask of the k-th box of NAME), OUT/NAME.rois.zip,
-					  OUT/NAME.objects.csv (one row per box, with fit figures and flags), OUT/NAME.overlay.png
-					""");
-				Args a = new Args(job, argv, 1, Set.of());
+				if (help) return print(String.format(Locale.ROOT, """
+					corral mask-boxes --images DIR --out DIR [--model FILE] [--boxes FILE.csv] [options]
+					  writes OUT/NAME.labels.tif (label k = mask of the k-th box of NAME), OUT/NAME.outlines.zip,
+					  OUT/NAME.objects.csv (one row per box, with fit figures and flags), OUT/NAME.overlay.png,
+					  and OUT/corral-run.json (the model used). OUT must not be the image folder. Resumable:
+					  images already done are skipped; a failing image is listed in OUT/corral-failures.csv
+					  and the others go on (exit code 3).
+					  By default the model first continues learning on the boxes being masked (one step per
+					  box, %d to %d steps; without --model it learns from scratch on them), then each mask is
+					  fitted to its box (it crosses every row and column of the box, and fills at most %.0f %%%%).
+					  --model FILE         model to start from (optional)
+					  --no-adapt           mask with the model as it is
+					  --adapt-steps N      steps of that learning (default: the rule above)
+					  --save-adapted FILE  also save the adapted model
+					  --margin PX          boxes may be up to PX too large on each side
+					  --seed S, --band W, --all-boxed, --threads N   as for learn
+					""", Adaptation.MIN_STEPS, Adaptation.MAX_STEPS, 100 * SupervisionSettings.DEFAULT_FILL_MAX).replace("%%", "%"));
+				Args a = new Args(job, argv, 1, Set.of("no-adapt", "partial", "all-boxed"));
 				threads(a);
-				Path images = a.path("images", true), model = a.path("model", true), out = a.path("out", true), boxes = a.path("boxes", false);
+				Path images = a.path("images", true), model = a.path("model", false), out = a.path("out", true), boxes = a.path("boxes", false);
+				boolean adapt = !a.has("no-adapt");
+				int steps = a.integer("adapt-steps", 0, 1, 1_000_000);
+				Path save = a.path("save-adapted", false);
+				LearnSettings s = settings(a);
 				a.checkAllUsed();
+				if (!adapt && model == null) throw new CorralException("mask-boxes: --no-adapt needs --model FILE");
 				Map<Path, List<Box>> boxed = BoxedImages.find(images, boxes);
 				if (boxed.isEmpty()) throw new CorralException("No boxes found for the images in " + images);
-				try (ModelRunner m = ModelRunner.open(model)) {
-					Jobs.maskBoxes(boxed, m, out, System.out::println);
-				}
-				return 0;
+				AtomicBoolean stop = cancelOnInterrupt();
+				return report(Jobs.maskBoxes(boxed, boxes, model, new Jobs.AdaptPlan(adapt, steps, save, s), out, stop::get, printer(stop), System.out::println));
 			}
 			case "mask-image" -> {
 				if (help) return print("""
 					corral mask-image --images DIR --model FILE --out DIR [--object-size PX] [--propose] [--threads N]
-					  masks every object of every image, no boxes needed: OUT/NAME.tif (one id per object),
-					  OUT/NAME.rois.zip, OUT/NAME.objects.csv (area, mean probability, confidence, flags),
-					  OUT/NAME.overlay.png. Resumable: images already done are skipped.
+					  masks every object of every image, no boxes needed: OUT/NAME.labels.tif (one id per object),
+					  OUT/NAME.outlines.zip, OUT/NAME.objects.csv (area, mean probability, confidence, flags),
+					  OUT/NAME.overlay.png. OUT must not be the image folder. Resumable: images already done
+					  are skipped; a failing image is listed in OUT/corral-failures.csv, the others go on (exit 3).
 					  --object-size PX  typical object side in these images (default: measured in a first pass)
-					  --propose         also write the objects as boxes: OUT/boxes.csv (learner's form) and
-					                    OUT/NAME.boxes.zip, to correct and learn again
+					  --propose         also write the objects as boxes: OUT/corral-proposed-boxes.csv (learner's
+					                    form) and OUT/NAME.proposed-boxes.zip, to correct and learn again
 					""");
 				Args a = new Args(job, argv, 1, Set.of("propose"));
 				threads(a);
 				Path images = a.path("images", true), model = a.path("model", true), out = a.path("out", true);
-				double size = a.number("object-size", 0);
+				double size = a.number("object-size", 0, 0, 1e6);
 				boolean propose = a.has("propose");
 				a.checkAllUsed();
 				List<Path> files = BoxedImages.images(images);
 				if (files.isEmpty()) throw new CorralException("No images in " + images);
 				AtomicBoolean stop = cancelOnInterrupt();
-				Jobs.FolderReport rep;
+				FolderRun.Report rep;
 				try (ModelRunner m = ModelRunner.open(model)) {
 					rep = Jobs.maskImages(files, m, out, size, propose, stop::get, System.out::println);
 				}
-				System.out.printf(Locale.ROOT, "%d written, %d skipped (already done), %d failed%n", rep.written(), rep.skipped(), rep.failed().size());
-				return rep.failed().isEmpty() ? 0 : 3;
+				return report(rep);
 			}
 			case "score" -> {
 				if (help) return print("""
@@ -151,11 +169,11 @@ public final class Main {
 				return 0;
 			}
 			case "demo" -> {
-				if (help) return print("corral demo [--out DIR] [--steps N] [learn options]\n  learns from the boxes of test-images/ (default 150 steps), masks them, scores them against\n  test-images/reference (default out: corral-demo-output)\n");
+				if (help) return print("corral demo [--out DIR] [--steps N] [learn options]\n  learns from the boxes of test-images/ (default " + LearnSettings.QUICK_STEPS + " steps), masks them, scores them against\n  test-images/reference (default out: corral-demo-output)\n");
 				Args a = new Args(job, argv, 1, Set.of("partial", "all-boxed"));
 				threads(a);
 				Path out = Path.of(a.str("out", "corral-demo-output"));
-				LearnSettings s = settings(a, DEMO_STEPS);
+				LearnSettings s = settings(a, LearnSettings.QUICK_STEPS);
 				a.checkAllUsed();
 				Demo.run(Path.of("test-images"), out, s, printer(cancelOnInterrupt()), System.out::println);
 				return 0;
@@ -164,15 +182,35 @@ public final class Main {
 				if (help) return print("corral benchmark --data DIR [--data2 DIR] [--grow 0,2,4,8] [learn options]\n  each DIR is a reference set (images/, labels/, boxes.csv): learn on the first 5 images, mask the other 5;\n  prints the figures of Corral, the box itself and Otsu in the box; with boxes (tight) and without (whole image).\n  --grow LIST  instead: per-object Dice with every box enlarged by each amount, without and with --margin\n");
 				Args a = new Args(job, argv, 1, Set.of("partial", "all-boxed"));
 				threads(a);
+				if (a.has("learn")) { // the cross-collection protocol: learn on A, mask B
+					Path learnSet = a.path("learn", true);
+					List<Path> maskSets = new java.util.ArrayList<>();
+					for (String m : a.str("mask", "").split(",")) if (!m.isBlank()) maskSets.add(Path.of(m.trim()));
+					if (maskSets.isEmpty()) throw new CorralException("benchmark: --learn needs --mask SET[,SET...]");
+					LearnSettings s = settings(a);
+					int nLearn = a.integer("learn-images", 5, 1, 1000);
+					Path cache = a.path("cache", false);
+					a.checkAllUsed();
+					StringBuilder all = new StringBuilder();
+					for (Path m : maskSets) {
+						System.out.println("== learn " + learnSet.getFileName() + ", mask " + m.getFileName());
+						String t = org.corral.workflow.CrossBenchmark.table(learnSet.getFileName().toString(), m.getFileName().toString(),
+							org.corral.workflow.CrossBenchmark.run(learnSet, m, s, nLearn, cache, System.out::println));
+						System.out.print(t);
+						all.append(t);
+					}
+					System.out.print("\n" + all);
+					System.out.printf(Locale.ROOT, "peak memory (resident): %.0f MiB%n", Benchmark.peakMemoryBytes() / 1048576.0);
+					return 0;
+				}
 				List<Path> sets = new java.util.ArrayList<>();
 				sets.add(a.path("data", true));
 				if (a.has("data2")) sets.add(a.path("data2", true));
 				LearnSettings s = settings(a);
-				int nLearn = a.integer("learn-images", 5);
-				String grow = a.str("grow", null);
+				int nLearn = a.integer("learn-images", 5, 1, 1000);
+				int[] g = a.integers("grow", 0, 100);
 				a.checkAllUsed();
-				if (grow != null) { // the loose-box sensitivity table instead
-					int[] g = java.util.Arrays.stream(grow.split(",")).map(String::trim).mapToInt(Integer::parseInt).toArray();
+				if (g != null) { // the loose-box sensitivity table instead
 					StringBuilder t = new StringBuilder();
 					for (Path set : sets) t.append(Benchmark.sensitivity(set, s, nLearn, g, System.out::println));
 					System.out.print("\n" + t);
@@ -194,7 +232,7 @@ public final class Main {
 				if (help) return print("corral tour [--out DIR] [--steps N]\n  on a display (xvfb-run -a on a server): boxes ten demo objects in the ROI Manager, learns, masks,\n  and saves screenshots of the learning plot, the outlines and the windows (default out: corral-tour)\n");
 				Args a = new Args(job, argv, 1, Set.of());
 				Path out = Path.of(a.str("out", "corral-tour"));
-				int steps = a.integer("steps", DEMO_STEPS);
+				int steps = a.integer("steps", LearnSettings.QUICK_STEPS, 1, 1_000_000);
 				a.checkAllUsed();
 				try {
 					org.corral.fiji.Tour.run(Path.of("test-images"), out, steps);
@@ -210,7 +248,11 @@ public final class Main {
 		}
 	}
 
-	static final int DEMO_STEPS = 150;
+	/** Prints a folder run's summary; exit code 3 when some image failed. */
+	static int report(FolderRun.Report rep) {
+		System.out.println(rep.summary());
+		return rep.failed().isEmpty() ? 0 : 3;
+	}
 
 	static LearnSettings settings(Args a) {
 		return settings(a, new LearnSettings().steps);
@@ -219,29 +261,35 @@ public final class Main {
 	static LearnSettings settings(Args a, int defaultSteps) {
 		LearnSettings s = new LearnSettings();
 		s.steps = defaultSteps;
-		s.minutes = a.number("minutes", s.minutes);
-		s.steps = a.integer("steps", s.steps);
-		s.seed = a.integer("seed", (int) s.seed);
-		s.band = a.integer("band", s.band);
-		s.margin = a.integer("margin", s.margin);
-		s.base = a.integer("width", s.base);
-		s.crop = a.integer("crop", s.crop);
-		s.batch = a.integer("batch", s.batch);
-		s.learningRate = a.number("lr", s.learningRate);
-		s.tMax = a.number("tmax", s.tMax);
-		s.fillMin = a.number("fill-min", s.fillMin);
-		s.fillMax = a.number("fill-max", s.fillMax);
-		s.pairTolerance = a.number("pair-tolerance", s.pairTolerance);
-		s.weights = new org.corral.loss.LossWeights(a.number("w-band", s.weights.band()), a.number("w-fill", s.weights.fill()),
-			a.number("w-pair", s.weights.pairwise()));
+		final double any = Double.MAX_VALUE;
+		s.minutes = a.number("minutes", s.minutes, 0, any);
+		s.steps = a.integer("steps", s.steps, 1, 10_000_000);
+		s.seed = a.whole("seed", s.seed, Long.MIN_VALUE, Long.MAX_VALUE);
+		s.band = a.integer("band", s.band, 1, 10_000);
+		s.margin = a.integer("margin", s.margin, 0, 10_000);
+		s.base = a.integer("width", s.base, 4, 128);
+		s.crop = a.integer("crop", s.crop, 32, 4096);
+		s.batch = a.integer("batch", s.batch, 1, 1024);
+		s.learningRate = a.number("lr", s.learningRate, 1e-9, 10);
+		s.tMax = a.number("tmax", s.tMax, s.tStart, any);
+		s.fillMin = a.number("fill-min", s.fillMin, 0, 1);
+		s.fillMax = a.number("fill-max", s.fillMax, 0, 1);
+		s.pairTolerance = a.number("pair-tolerance", s.pairTolerance, 0, any);
+		s.weights = new org.corral.loss.LossWeights(a.number("w-band", s.weights.band(), 0, any), a.number("w-fill", s.weights.fill(), 0, any),
+			a.number("w-pair", s.weights.pairwise(), 0, any));
 		if (a.has("all-boxed")) s.background = Supervision.BackgroundMode.FULL;
 		if (a.has("partial")) s.background = Supervision.BackgroundMode.RING; // the default, named for scripts
+		String aug = a.str("augment", null);
+		if (aug != null) {
+			if (!aug.equals("on") && !aug.equals("off")) throw new CorralException(a.job() + ": --augment must be on or off, got '" + aug + "'");
+			s.augment = aug.equals("on");
+		}
 		s.validate();
 		return s;
 	}
 
 	static void threads(Args a) {
-		int n = a.integer("threads", 0);
+		int n = a.integer("threads", 0, 1, 4096);
 		if (n > 0) {
 			System.setProperty("ai.djl.pytorch.num_threads", String.valueOf(n));
 			System.setProperty("ai.djl.pytorch.num_interop_threads", "1");

@@ -7,7 +7,6 @@ import ij.measure.ResultsTable;
 import ij.plugin.frame.RoiManager;
 import ij.process.LUT;
 
-import java.awt.Color;
 import java.awt.GraphicsEnvironment;
 import java.util.List;
 
@@ -49,24 +48,13 @@ public final class ImageJOutputs {
 	public static void showOutlines(ImagePlus source, List<Roi> outlines, boolean keep) {
 		Overlay ov = keep && source.getOverlay() != null ? source.getOverlay() : new Overlay();
 		for (Roi r : outlines) {
-			Roi c = (Roi) r.clone();
-			c.setStrokeColor(new Color(Overlays.colour(labelOf(r))));
-			ov.add(c);
+			ov.add((Roi) r.clone()); // outlines carry the colour of their label from when they were traced
 		}
 		source.setOverlay(ov);
 		if (!GraphicsEnvironment.isHeadless()) {
 			RoiManager rm = RoiManager.getRoiManager();
 			if (!keep) rm.reset();
 			for (Roi r : outlines) rm.addRoi((Roi) r.clone());
-		}
-	}
-
-	private static int labelOf(Roi r) {
-		String n = r.getName();
-		try {
-			return Integer.parseInt(n.substring(n.indexOf('-') + 1, n.indexOf('-') + 5));
-		} catch (RuntimeException e) {
-			return 1;
 		}
 	}
 
@@ -88,6 +76,7 @@ public final class ImageJOutputs {
 			rt.addValue("rows_crossed", f.rowsCrossed());
 			rt.addValue("columns_crossed", f.columnsCrossed());
 			rt.addValue("mean_probability", f.meanProbability());
+			rt.addValue("prior_met", f.priorMet() ? 1 : 0);
 			rt.addValue("flags", String.join(";", f.flags()));
 		}
 		return rt;

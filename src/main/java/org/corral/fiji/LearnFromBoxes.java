@@ -9,6 +9,7 @@ import java.util.List;
 
 import org.corral.CorralException;
 import org.corral.supervision.Supervision;
+import org.corral.supervision.SupervisionSettings;
 import org.corral.train.LearnSettings;
 import org.corral.train.Learner;
 import org.corral.train.TrainingImage;
@@ -20,8 +21,11 @@ import org.scijava.plugin.Parameter;
 import org.scijava.plugin.Plugin;
 
 /** Learns a model from the boxes of the current image, of all open images, or of a folder. */
-@Plugin(type = Command.class, menuPath = "Plugins>Corral>Learn from Boxes")
+@Plugin(type = Command.class, menuPath = "Plugins>Corral>" + LearnFromBoxes.TITLE)
 public class LearnFromBoxes implements Command {
+	/** The title in ImageJ's (flat) command table and in macros: prefixed, so no other plugin's title clashes. */
+	public static final String TITLE = "Corral Learn from Boxes";
+
 	public static final String CURRENT = "current image", ALL_OPEN = "all open images", FOLDER = "folder";
 
 	@Parameter(required = false, persist = false)
@@ -40,16 +44,16 @@ public class LearnFromBoxes implements Command {
 	File model;
 
 	@Parameter(label = "Steps", min = "1", persist = false)
-	int steps = new LearnSettings().steps;
+	int steps = LearnSettings.DEFAULT_STEPS;
 
 	@Parameter(label = "Seed", persist = false)
-	long seed = 1;
+	long seed = LearnSettings.DEFAULT_SEED;
 
 	@Parameter(label = "Band width w", min = "1", persist = false)
-	int band = 5;
+	int band = SupervisionSettings.DEFAULT_BAND;
 
 	@Parameter(label = "Margin for loose boxes (px)", min = "0", persist = false)
-	int margin = 0;
+	int margin = SupervisionSettings.DEFAULTS.margin();
 
 	@Parameter(label = "Every object is boxed (else: background only in a ring around each box)", persist = false)
 	boolean complete = false;
@@ -63,21 +67,30 @@ public class LearnFromBoxes implements Command {
 	/** Set by callers (the macro bridge) that can cancel from outside. */
 	ImageJProgress progress;
 
-	@Override
-	public void run() {
+	/** The settings of the Fiji commands (learning and preview alike); the rest are the defaults. */
+	static LearnSettings settings(int band, int margin, boolean complete) {
 		LearnSettings s = new LearnSettings();
-		s.steps = steps;
-		s.seed = seed;
 		s.band = band;
 		s.margin = margin;
 		s.minutes = 0; // in ImageJ the user cancels with Esc; the step count keeps results reproducible
 		s.background = complete ? Supervision.BackgroundMode.FULL : Supervision.BackgroundMode.RING;
+		s.validate();
+		return s;
+	}
+
+	@Override
+	public void run() {
+		LearnSettings s = settings(band, margin, complete);
+		s.steps = steps;
+		s.seed = seed;
 		if (model == null) throw new CorralException("Choose where to save the model");
 		List<TrainingImage> images = new ArrayList<>();
 		switch (source) {
 			case FOLDER -> {
 				if (folder == null) throw new CorralException("Choose the image folder");
-				images.addAll(Jobs.trainingImages(BoxedImages.find(folder.toPath(), table == null ? null : table.toPath()), ij.IJ::log));
+				var boxed = BoxedImages.find(folder.toPath(), table == null ? null : table.toPath());
+				Jobs.checkModelTarget(model.toPath(), boxed.keySet(), table == null ? null : table.toPath());
+				images.addAll(Jobs.trainingImages(boxed, ij.IJ::log));
 			}
 			case ALL_OPEN -> {
 				int[] ids = WindowManager.getIDList();
@@ -96,6 +109,9 @@ public class LearnFromBoxes implements Command {
 			default -> {
 				if (image == null) throw new CorralException("No image: open the image whose boxes to learn from");
 				ImageJBoxes.Found f = ImageJBoxes.of(image);
+				ij.io.FileInfo fi = image.getOriginalFileInfo();
+				if (fi != null && fi.directory != null && fi.fileName != null)
+					Jobs.checkModelTarget(model.toPath(), List.of(java.nio.file.Path.of(fi.directory, fi.fileName)), null);
 				images.addAll(Jobs.trainingImages(image, image.getTitle(), f.boxes(), f.region(), ij.IJ::log));
 			}
 		}

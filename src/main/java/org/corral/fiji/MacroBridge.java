@@ -30,7 +30,7 @@ import org.scijava.command.CommandService;
 import org.scijava.plugin.Parameter;
 
 /**
- * Lets ImageJ 1.x macros call the Corral commands as {@code run("Learn from Boxes", "steps=200 ...")}
+ * Lets ImageJ 1.x macros call the Corral commands as {@code run("Corral Learn from Boxes", "steps=200 ...")}
  * where no SciJava layer does it for us (plain ImageJ 1.x, headless batch jobs, tests). In Fiji the
  * commands already are menu entries and macro commands through SciJava; there this bridge is not
  * installed. Keys are the commands' {@code @Parameter} field names; checkboxes are given as bare
@@ -40,12 +40,12 @@ import org.scijava.plugin.Parameter;
 public final class MacroBridge implements PlugIn {
 	public static final Map<String, Class<? extends Command>> COMMANDS = new LinkedHashMap<>();
 	static {
-		COMMANDS.put("Learn from Boxes", LearnFromBoxes.class);
-		COMMANDS.put("Masks for Boxes", MasksForBoxes.class);
-		COMMANDS.put("Masks for Whole Image", MasksForWholeImage.class);
-		COMMANDS.put("Preview Box Supervision", PreviewBoxSupervision.class);
-		COMMANDS.put("Score Against Reference", ScoreAgainstReference.class);
-		COMMANDS.put("Process Folder", ProcessFolder.class);
+		COMMANDS.put(LearnFromBoxes.TITLE, LearnFromBoxes.class);
+		COMMANDS.put(MasksForBoxes.TITLE, MasksForBoxes.class);
+		COMMANDS.put(MasksForWholeImage.TITLE, MasksForWholeImage.class);
+		COMMANDS.put(PreviewBoxSupervision.TITLE, PreviewBoxSupervision.class);
+		COMMANDS.put(ScoreAgainstReference.TITLE, ScoreAgainstReference.class);
+		COMMANDS.put(ProcessFolder.TITLE, ProcessFolder.class);
 	}
 
 	private static Context context;
@@ -67,7 +67,14 @@ public final class MacroBridge implements PlugIn {
 				throw new IllegalStateException("cannot create ImageJ's command table", e);
 			}
 		}
-		for (String label : COMMANDS.keySet()) table.putIfAbsent(label, MacroBridge.class.getName() + "(\"" + label + "\")");
+		// ImageJ's command table is flat: a title another plugin already holds is refused, never replaced
+		// nor silently left to the other plugin
+		for (String label : COMMANDS.keySet()) {
+			String ours = MacroBridge.class.getName() + "(\"" + label + "\")", there = table.get(label);
+			if (there != null && !there.equals(ours))
+				throw new CorralException("Cannot install the Corral command '" + label + "': ImageJ's command table already gives that title to " + there);
+		}
+		for (String label : COMMANDS.keySet()) table.put(label, MacroBridge.class.getName() + "(\"" + label + "\")");
 		return "Corral commands installed";
 	}
 

@@ -10,6 +10,9 @@ import org.corral.boxes.Box;
 import org.corral.predict.ModelRunner;
 import org.corral.train.LearnSettings;
 import org.corral.train.Learner;
+import org.corral.supervision.SupervisionSettings;
+import org.corral.train.TrainingImage;
+import org.corral.workflow.Adaptation;
 import org.corral.workflow.Jobs;
 import org.scijava.ItemIO;
 import org.scijava.command.Command;
@@ -18,11 +21,15 @@ import org.scijava.plugin.Plugin;
 
 /**
  * One mask per box of the image: a label image (label k = k-th box), one outline per object in the
- * ROI Manager and the overlay, and a table with one row per box. Without a model file, it first
- * learns on this image's boxes (quick mode).
+ * ROI Manager and the overlay, and a table with one row per box. With a model file, the model first
+ * continues learning on this image's boxes (unless {@code adapt} is off); without one, it learns on
+ * them from scratch (quick mode). Each mask is fitted to its box.
  */
-@Plugin(type = Command.class, menuPath = "Plugins>Corral>Masks for Boxes")
+@Plugin(type = Command.class, menuPath = "Plugins>Corral>" + MasksForBoxes.TITLE)
 public class MasksForBoxes implements Command {
+	/** The title in ImageJ's (flat) command table and in macros: prefixed, so no other plugin's title clashes. */
+	public static final String TITLE = "Corral Masks for Boxes";
+
 	@Parameter(persist = false)
 	ImagePlus image;
 
@@ -30,7 +37,10 @@ public class MasksForBoxes implements Command {
 	File model;
 
 	@Parameter(label = "Steps (quick learning without a model)", min = "1", persist = false)
-	int steps = 150;
+	int steps = LearnSettings.QUICK_STEPS;
+
+	@Parameter(label = "First learn from these boxes (adapt the model to this image)", persist = false)
+	boolean adapt = true;
 
 	@Parameter(label = "Keep the boxes in the ROI Manager", persist = false)
 	boolean keep = true;
@@ -48,7 +58,15 @@ public class MasksForBoxes implements Command {
 		Jobs.BoxMaskOutcome o;
 		if (model != null && model.getPath().length() > 0) {
 			try (ModelRunner m = ModelRunner.open(model.toPath())) {
-				o = Jobs.maskBoxes(image, bs, m);
+				if (adapt) { // continue learning on this image's boxes, then mask them
+					List<TrainingImage> own = Jobs.trainingImages(image, image.getTitle(), bs, f.region(), ij.IJ::log);
+					int n = own.stream().mapToInt(t -> t.boxes().size()).sum();
+					if (n == 0) throw new CorralException("None of the boxes lies on " + image.getTitle());
+					LearnSettings s = Adaptation.settings(LearnFromBoxes.settings(SupervisionSettings.DEFAULT_BAND, 0, false), m, n, 0);
+					try (Learner.Result r = Adaptation.adapt(m, own, s, new ImageJProgress(false))) {
+						o = Jobs.maskBoxes(image, bs, new ModelRunner(r.header(), r.net(), r.manager()));
+					}
+				} else o = Jobs.maskBoxes(image, bs, m);
 			}
 		} else {
 			LearnSettings s = new LearnSettings();

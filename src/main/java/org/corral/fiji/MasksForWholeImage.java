@@ -13,8 +13,11 @@ import org.scijava.plugin.Parameter;
 import org.scijava.plugin.Plugin;
 
 /** Masks every object of an image nobody boxed, with a model learned from boxes elsewhere. */
-@Plugin(type = Command.class, menuPath = "Plugins>Corral>Masks for Whole Image")
+@Plugin(type = Command.class, menuPath = "Plugins>Corral>" + MasksForWholeImage.TITLE)
 public class MasksForWholeImage implements Command {
+	/** The title in ImageJ's (flat) command table and in macros: prefixed, so no other plugin's title clashes. */
+	public static final String TITLE = "Corral Masks for Whole Image";
+
 	@Parameter(persist = false)
 	ImagePlus image;
 

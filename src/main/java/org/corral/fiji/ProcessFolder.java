@@ -4,7 +4,10 @@ import java.io.File;
 
 import org.corral.CorralException;
 import org.corral.predict.ModelRunner;
+import org.corral.supervision.SupervisionSettings;
+import org.corral.train.LearnSettings;
 import org.corral.workflow.BoxedImages;
+import org.corral.workflow.FolderRun;
 import org.corral.workflow.Jobs;
 import org.scijava.ItemIO;
 import org.scijava.command.Command;
@@ -15,8 +18,11 @@ import org.scijava.plugin.Plugin;
  * Folder in, folder out: label TIFFs, ROI zips, per-image CSV; resumable (images already done are
  * skipped), atomic, and a failing image is reported without stopping the rest.
  */
-@Plugin(type = Command.class, menuPath = "Plugins>Corral>Process Folder")
+@Plugin(type = Command.class, menuPath = "Plugins>Corral>" + ProcessFolder.TITLE)
 public class ProcessFolder implements Command {
+	/** The title in ImageJ's (flat) command table and in macros: prefixed, so no other plugin's title clashes. */
+	public static final String TITLE = "Corral Process Folder";
+
 	public static final String WHOLE = "whole images", BOXES = "boxes";
 
 	@Parameter(label = "Image folder", style = "directory", persist = false)
@@ -34,24 +40,26 @@ public class ProcessFolder implements Command {
 	@Parameter(label = "Box CSV (for 'boxes'; else ROI sets beside the images)", required = false, persist = false)
 	File table;
 
+	@Parameter(label = "First learn from the boxes being masked (for 'boxes')", persist = false)
+	boolean adapt = true;
+
 	@Parameter(type = ItemIO.OUTPUT)
 	String summary;
 
 	@Override
 	public void run() {
 		if (input == null || output == null || model == null) throw new CorralException("Choose the image folder, the output folder and the model file");
-		try (ModelRunner m = ModelRunner.open(model.toPath())) {
-			if (BOXES.equals(mode)) {
-				var boxed = BoxedImages.find(input.toPath(), table == null ? null : table.toPath());
-				if (boxed.isEmpty()) throw new CorralException("No boxes found for the images in " + input);
-				Jobs.maskBoxes(boxed, m, output.toPath(), ij.IJ::log);
-				summary = boxed.size() + " image(s) masked";
-			} else {
-				Jobs.FolderReport r = Jobs.maskImages(BoxedImages.images(input.toPath()), m, output.toPath(), 0, false, ij.IJ::escapePressed, ij.IJ::log);
-				summary = r.written() + " written, " + r.skipped() + " skipped (already done), " + r.failed().size() + " failed"
-					+ (r.failed().isEmpty() ? "" : ": " + r.failed());
-			}
+		FolderRun.Report r;
+		if (BOXES.equals(mode)) {
+			var boxed = BoxedImages.find(input.toPath(), table == null ? null : table.toPath());
+			if (boxed.isEmpty()) throw new CorralException("No boxes found for the images in " + input);
+			LearnSettings s = LearnFromBoxes.settings(SupervisionSettings.DEFAULT_BAND, 0, false);
+			r = Jobs.maskBoxes(boxed, table == null ? null : table.toPath(), model.toPath(), new Jobs.AdaptPlan(adapt, 0, null, s), output.toPath(),
+				ij.IJ::escapePressed, new ImageJProgress(false), ij.IJ::log);
+		} else try (ModelRunner m = ModelRunner.open(model.toPath())) {
+			r = Jobs.maskImages(BoxedImages.images(input.toPath()), m, output.toPath(), 0, false, ij.IJ::escapePressed, ij.IJ::log);
 		}
+		summary = r.summary() + (r.failed().isEmpty() ? "" : ": " + r.failed());
 		ij.IJ.log("Corral: " + summary);
 	}
 }

@@ -10,8 +10,11 @@ import org.scijava.plugin.Parameter;
 import org.scijava.plugin.Plugin;
 
 /** A label image against a reference label image: the score table of the command line. */
-@Plugin(type = Command.class, menuPath = "Plugins>Corral>Score Against Reference")
+@Plugin(type = Command.class, menuPath = "Plugins>Corral>" + ScoreAgainstReference.TITLE)
 public class ScoreAgainstReference implements Command {
+	/** The title in ImageJ's (flat) command table and in macros: prefixed, so no other plugin's title clashes. */
+	public static final String TITLE = "Corral Score Against Reference";
+
 	@Parameter(label = "Label image", persist = false)
 	ImagePlus labels;
 

@@ -22,7 +22,18 @@ public final class Normalise {
 		return percentiles(im, LOW, HIGH);
 	}
 
-	static float[] channel(float[] v, double low, double high) {
+	/** The raw values that map to 0 and 1 in each channel. */
+	public static float[][] bounds(PlanarImage im, double low, double high) {
+		float[][] b = new float[2][im.nChannels()];
+		for (int c = 0; c < im.nChannels(); c++) {
+			float[] lh = bounds(im.channels[c], low, high);
+			b[0][c] = lh[0];
+			b[1][c] = lh[1];
+		}
+		return b;
+	}
+
+	static float[] bounds(float[] v, double low, double high) {
 		// a strided sample keeps this fast on huge images; percentiles barely move
 		int step = Math.max(1, v.length / 1_000_000);
 		float[] s = new float[(v.length + step - 1) / step];
@@ -38,6 +49,12 @@ public final class Normalise {
 				hi = s[n - 1];
 			}
 		}
+		return new float[] {lo, hi};
+	}
+
+	static float[] channel(float[] v, double low, double high) {
+		float[] lh = bounds(v, low, high);
+		float lo = lh[0], hi = lh[1];
 		float scale = hi > lo ? 1f / (hi - lo) : 0f;
 		float[] out = new float[v.length];
 		for (int i = 0; i < v.length; i++) {

@@ -20,14 +20,43 @@ public final class BoxMasks {
 
 	private BoxMasks() {}
 
+	/**
+	 * How box masks are made: the threshold, whether each mask is fitted to its box ({@link BoxFit}),
+	 * the lines of slack at each side (a loose box's margin) and the box-size bound.
+	 */
+	public record Options(double threshold, boolean fit, int margin, double fillMax) {
+		public static final Options DEFAULTS = new Options(0.5, true, 0, 0.95);
+
+		public Options withMargin(int m) {
+			return new Options(threshold, fit, m, fillMax);
+		}
+	}
+
+	/** Box masks without fitting: the pixels at or above the threshold (the baselines use this). */
+	public static Result make(float[] prob, int w, int h, List<Box> boxes, double threshold) {
+		return make(prob, w, h, boxes, new Options(threshold, false, 0, 1));
+	}
+
+	public static String VARIANT = System.getProperty("corral.fit", "tight");
+
 	/** Per-box quality figures, computed against the box the mask was made for. */
 	public record Fit(int index, Box box, long area, double fill, double rowsCrossed, double columnsCrossed,
-		double meanProbability, List<String> flags) {}
+		double meanProbability, boolean priorMet, List<String> flags) {
+		/** A box that got no mask at all (outside the image, duplicate, no such stack position). */
+		public static Fit none(int index, Box box, String flag) {
+			return new Fit(index, box, 0, 0, 0, 0, 0, false, List.of(flag));
+		}
+
+		public Fit renumbered(int newIndex) {
+			return new Fit(newIndex, box, area, fill, rowsCrossed, columnsCrossed, meanProbability, priorMet, flags);
+		}
+	}
 
 	public record Result(int[] labels, List<Fit> fits) {}
 
-	public static Result make(float[] prob, int w, int h, List<Box> boxes, double threshold) {
+	public static Result make(float[] prob, int w, int h, List<Box> boxes, Options opt) {
 		int n = boxes.size();
+		boolean[] met = new boolean[n + 1];
 		int[] owner = new int[w * h];
 		double[] ownerDist = new double[w * h];
 		int[] duplicateOf = new int[n + 1];
@@ -40,7 +69,15 @@ public final class BoxMasks {
 		for (int k = 1; k <= n; k++) {
 			Box b = boxes.get(k - 1).clip(w, h);
 			if (b == null || duplicateOf[k] > 0) continue;
-			boolean[] m = boxMask(prob, w, b, threshold);
+			boolean[] m;
+			if (opt.fit()) {
+				float[] p = new float[b.width() * b.height()];
+				for (int y = 0; y < b.height(); y++)
+					for (int x = 0; x < b.width(); x++) p[y * b.width() + x] = prob[(y + b.y()) * w + x + b.x()];
+				BoxFit.Fitted f = BoxFit.fit(p, b.width(), b.height(), opt.threshold(), opt.margin(), opt.fillMax(), VARIANT);
+				m = f.mask();
+				met[k] = f.priorMet();
+			} else m = boxMask(prob, w, b, opt.threshold());
 			double cx = boxes.get(k - 1).centreX() - 0.5, cy = boxes.get(k - 1).centreY() - 0.5;
 			double rx = boxes.get(k - 1).width() / 2.0, ry = boxes.get(k - 1).height() / 2.0;
 			for (int y = 0; y < b.height(); y++)
@@ -62,11 +99,11 @@ public final class BoxMasks {
 			Box orig = boxes.get(k - 1);
 			Box b = orig.clip(w, h);
 			if (b == null) {
-				fits.add(new Fit(k, orig, 0, 0, 0, 0, 0, List.of("outside-image")));
+				fits.add(Fit.none(k, orig, "outside-image"));
 				continue;
 			}
 			if (duplicateOf[k] > 0) {
-				fits.add(new Fit(k, orig, 0, 0, 0, 0, 0, List.of("duplicate-of-" + duplicateOf[k])));
+				fits.add(Fit.none(k, orig, "duplicate-of-" + duplicateOf[k]));
 				continue;
 			}
 			int bw = b.width(), bh = b.height();
@@ -98,7 +135,9 @@ public final class BoxMasks {
 			if (b.width() != orig.width() || b.height() != orig.height()) flags.add("clipped");
 			if (orig.touchesBorder(w, h)) flags.add("touches-border");
 			if (Math.min(orig.width(), orig.height()) < 4) flags.add("tiny");
-			fits.add(new Fit(k, orig, area, fill, rf, cf, area > 0 ? psum / area : 0, flags));
+			// the prior after fitting and sharing: every line crossed (margin lines excepted), not larger than allowed
+			boolean priorMet = area > 0 && BoxFit.crossed(m, bw, bh, opt.margin()) >= 1 && fill <= opt.fillMax() + 1e-9;
+			fits.add(new Fit(k, orig, area, fill, rf, cf, area > 0 ? psum / area : 0, priorMet, flags));
 		}
 		return new Result(labels, fits);
 	}

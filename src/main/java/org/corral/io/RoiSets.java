@@ -18,7 +18,8 @@ public final class RoiSets {
 
 	/**
 	 * One outline ROI per label value 1..n (null for an empty label), traced from its pixels;
-	 * {@code names[k-1]} names label k so each outline leads back to its box.
+	 * {@code names[k-1]} names label k so each outline leads back to its box. Each outline is drawn
+	 * in the colour of its label ({@link Overlays#colour}).
 	 */
 	public static Roi[] outlines(int[] labels, int w, int h, int n, String[] names) {
 		int[] x0 = new int[n + 1], y0 = new int[n + 1], x1 = new int[n + 1], y1 = new int[n + 1];
@@ -48,6 +49,8 @@ public final class RoiSets {
 			if (roi == null) continue;
 			roi.setLocation(roi.getXBase() + x0[l], roi.getYBase() + y0[l]);
 			roi.setName(names != null && names[l - 1] != null ? names[l - 1] : String.format("object-%04d", l));
+			roi.setStrokeColor(new java.awt.Color(Overlays.colour(l))); // coloured by its label value here, never from its name
+
 			rois[l - 1] = roi;
 		}
 		return rois;

@@ -11,7 +11,12 @@ import java.util.List;
 import org.corral.supervision.Constraint;
 
 /**
- * The box loss on a batch of crops:
+ * The box loss on a batch of crops. Tightness bands, box-size bound and known background trained
+ * together through the log-barrier extension are the method of "Bounding boxes for weakly supervised
+ * segmentation: Global constraints get close to full supervision" (MIDL 2020); the tightness prior
+ * itself is from "Image segmentation with a bounding box prior" (ICCV 2009); the log-barrier
+ * extension from "Constrained deep networks: Lagrangian optimization via log-barrier extensions"
+ * (arXiv:1904.04205, 2019). The fill lower bound is ours.
  * <ul>
  * <li>background: mean of -log(1 - s) over known-background pixels;</li>
  * <li>every {@link Constraint} (tightness bands, box-size bound, fill lower bound) through the
@@ -21,7 +26,8 @@ import org.corral.supervision.Constraint;
  * label: -log(s_p s_q + (1-s_p)(1-s_q)) (the pairwise affinity loss of "BoxInst: High-Performance
  * Instance Segmentation with Box Annotations", CVPR 2021).</li>
  * </ul>
- * All constraint sums come from one integral image of s, so their cost does not grow with box size.
+ * All constraint sums come from one integral image of s (a summed-area table, "Summed-area tables
+ * for texture mapping", SIGGRAPH 1984), so their cost does not grow with box size.
  */
 public final class BoxLoss {
 

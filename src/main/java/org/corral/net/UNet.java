@@ -21,7 +21,9 @@ import java.util.List;
 /**
  * A small U-Net ("U-Net: Convolutional Networks for Biomedical Image Segmentation", Ronneberger et
  * al., MICCAI 2015): {@code levels} resolutions, {@code base} channels at the top, doubling per
- * level; one output channel of object logits. DJL's PyTorch engine has no transposed convolution,
+ * level; one output channel of object logits. Each convolution is followed by batch normalisation
+ * ("Batch Normalization: Accelerating Deep Network Training by Reducing Internal Covariate Shift",
+ * ICML 2015). DJL's PyTorch engine has no transposed convolution,
  * so the decoder upsamples by nearest-neighbour repetition and lets the next convolution smooth.
  * Input height and width must be multiples of {@link #multiple()}.
  */

@@ -26,9 +26,11 @@ public final class ModelRunner implements AutoCloseable {
 	private final ModelHeader header;
 	private final NDManager manager;
 	private final TiledPredictor predictor;
+	private final UNet net;
 
 	public ModelRunner(ModelHeader header, UNet net, NDManager manager) {
 		this.header = header;
+		this.net = net;
 		this.manager = manager;
 		this.predictor = new TiledPredictor(net, manager);
 	}
@@ -46,6 +48,11 @@ public final class ModelRunner implements AutoCloseable {
 
 	public ModelHeader header() {
 		return header;
+	}
+
+	/** The network, e.g. to continue learning from it. */
+	public UNet net() {
+		return net;
 	}
 
 	/**

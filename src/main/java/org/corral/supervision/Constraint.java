@@ -3,12 +3,17 @@ package org.corral.supervision;
 /**
  * A linear inequality on the sum of object probabilities over a rectangle [x0,x1) x [y0,y1):
  * {@code z = sign * (sum - target) / norm <= 0}. Every box prior of Corral has this form, so the
- * loss evaluates them all from one integral image.
+ * loss evaluates them all from one integral image ("Summed-area tables for texture mapping",
+ * SIGGRAPH 1984).
  */
 public record Constraint(Kind kind, int box, int x0, int y0, int x1, int y1, float target, float sign, float norm) {
 
 	public enum Kind {
-		/** Tightness prior, band form: a band of w lines of a tight box holds at least w object pixels. */
+		/**
+		 * Tightness prior ("Image segmentation with a bounding box prior", ICCV 2009) in the band form of
+		 * "Bounding boxes for weakly supervised segmentation: Global constraints get close to full
+		 * supervision" (MIDL 2020): a band of w lines of a tight box holds at least w object pixels.
+		 */
 		BAND,
 		/** Lower bound on the fraction of the box the object fills (ours). */
 		FILL_MIN,

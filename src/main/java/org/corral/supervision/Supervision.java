@@ -7,7 +7,12 @@ import org.corral.boxes.Box;
 
 /**
  * What the boxes of one image (or crop) tell the learner, as compact arrays: the pixels known to
- * be background and the rectangle constraints of every box. Pure Java, no DJL.
+ * be background and the rectangle constraints of every box. Pure Java, no DJL. Background outside
+ * the boxes, tightness bands and the box-size bound follow "Bounding boxes for weakly supervised
+ * segmentation: Global constraints get close to full supervision" (MIDL 2020); the tightness prior
+ * is from "Image segmentation with a bounding box prior" (ICCV 2009). The ring background for
+ * partly boxed images, the annotated region and the fill lower bound are ours. Build it through
+ * {@link SupervisionSettings}, the one recipe learning and the preview share.
  */
 public final class Supervision {
 	public final int width, height;

@@ -17,7 +17,7 @@ import org.corral.supervision.Supervision;
  */
 final class CropSampler {
 	/** One prepared image: normalised pixels, a smoothed copy for the pairwise term, supervision. */
-	record Prepared(String name, PlanarImage image, PlanarImage guide, Supervision sup) {}
+	record Prepared(String name, PlanarImage image, PlanarImage guide, Supervision sup, float[][] bounds) {}
 
 	/** One crop, ready for the batch arrays. */
 	record Crop(float[][] channels, float[] background, float[] pairH, float[] pairV, List<Constraint> constraints) {}
@@ -26,12 +26,14 @@ final class CropSampler {
 	private final int[] boxImage, boxIndex;
 	private final int size;
 	private final LearnSettings settings;
+	private final org.corral.supervision.SupervisionSettings recipe;
 	private final SplittableRandom rnd;
 
 	CropSampler(List<Prepared> images, LearnSettings settings, SplittableRandom rnd) {
 		this.images = images;
 		this.size = settings.crop;
 		this.settings = settings;
+		this.recipe = settings.supervision();
 		this.rnd = rnd;
 		int n = 0;
 		for (Prepared p : images) n += p.sup().boxes.size();
@@ -76,7 +78,8 @@ final class CropSampler {
 					inBox[dst] = p.sup().inBox[src];
 				}
 			}
-		for (int c = 0; c < nc; c++) { // intensity jitter: gain and offset per channel
+		if (settings.augment) Appearance.jitter(ch, p.bounds()[0], p.bounds()[1], s, rnd);
+		else for (int c = 0; c < nc; c++) { // intensity jitter only: gain and offset per channel
 			float gain = (float) Math.exp(rnd.nextDouble(-0.2, 0.2)), off = (float) rnd.nextDouble(-0.1, 0.1);
 			for (int i = 0; i < ch[c].length; i++) ch[c][i] = ch[c][i] * gain + off;
 		}
@@ -86,8 +89,7 @@ final class CropSampler {
 			if (x0 < 0 || y0 < 0 || x0 + b.width() > s || y0 + b.height() > s) continue;
 			inCrop.add(transform(d, new Box(b.index(), x0, y0, b.width(), b.height()), s));
 		}
-		List<Constraint> cons = Supervision.builder(s, s).optBand(settings.band).optMargin(Math.min(1, settings.margin))
-			.optFill(settings.fillMin, settings.fillMax).build(inCrop).constraints;
+		List<Constraint> cons = recipe.forCrop(s, inCrop);
 		float[] ph = new float[s * (s - 1)], pv = new float[(s - 1) * s];
 		double tol2 = settings.pairTolerance * settings.pairTolerance * nc;
 		for (int y = 0; y < s; y++)

@@ -2,22 +2,27 @@ package org.corral.train;
 
 import org.corral.loss.LossWeights;
 import org.corral.supervision.Supervision.BackgroundMode;
+import org.corral.supervision.SupervisionSettings;
 
 /**
  * Everything that shapes learning. The defaults are what a user gets without tuning; they were
  * chosen by measurement on the developer reference sets (README, "How the defaults were chosen").
  */
 public final class LearnSettings {
+	/** Defaults read by the command line, the Fiji commands and the docs. */
+	public static final int DEFAULT_STEPS = 400, QUICK_STEPS = 150;
+	public static final long DEFAULT_SEED = 1;
+
 	public int base = 16, levels = 4;
 	public int crop = 128, batch = 8;
 	/** Number of steps; with the same seed and thread count, the same steps give the same model. */
-	public int steps = 400;
+	public int steps = DEFAULT_STEPS;
 	/** Time budget in minutes (0 = none): when the steps would take longer, the run is shortened to fit. */
 	public double minutes = 5;
 	public double learningRate = 2e-3;
-	public long seed = 1;
-	public int band = 5, margin = 0;
-	public double fillMin = 0.3, fillMax = 0.95;
+	public long seed = DEFAULT_SEED;
+	public int band = SupervisionSettings.DEFAULTS.band(), margin = SupervisionSettings.DEFAULTS.margin();
+	public double fillMin = SupervisionSettings.DEFAULTS.fillMin(), fillMax = SupervisionSettings.DEFAULTS.fillMax();
 	public LossWeights weights = LossWeights.defaults();
 	/** Log-barrier t: from tStart, growing geometrically to tMax over the first tRamp of the steps, then held. */
 	public double tStart = 5, tMax = 30, tRamp = 0.6;
@@ -27,7 +32,9 @@ public final class LearnSettings {
 	 * Where background is known. The safe default, RING, works whether or not every object is boxed;
 	 * FULL (every object of each image is boxed) also uses the pixels far from the boxes.
 	 */
-	public BackgroundMode background = BackgroundMode.RING;
+	public BackgroundMode background = SupervisionSettings.DEFAULTS.background();
+	/** Appearance jitter of the crops beyond gain and offset: stain (RGB), gamma, blur, noise ({@link Appearance}). */
+	public boolean augment = true;
 	/** Print/notify progress every this many steps. */
 	public int reportEvery = 10;
 
@@ -49,6 +56,37 @@ public final class LearnSettings {
 		if (!ok) throw new org.corral.CorralException("Invalid setting: " + msg);
 	}
 
+	/** An independent copy, to change for one run. */
+	public LearnSettings copy() {
+		LearnSettings c = new LearnSettings();
+		c.base = base;
+		c.levels = levels;
+		c.crop = crop;
+		c.batch = batch;
+		c.steps = steps;
+		c.minutes = minutes;
+		c.learningRate = learningRate;
+		c.seed = seed;
+		c.band = band;
+		c.margin = margin;
+		c.fillMin = fillMin;
+		c.fillMax = fillMax;
+		c.weights = weights;
+		c.tStart = tStart;
+		c.tMax = tMax;
+		c.tRamp = tRamp;
+		c.pairTolerance = pairTolerance;
+		c.background = background;
+		c.reportEvery = reportEvery;
+		c.augment = augment;
+		return c;
+	}
+
+	/** The supervision recipe of these settings (learning, its crops and the preview all use it). */
+	public SupervisionSettings supervision() {
+		return new SupervisionSettings(band, margin, fillMin, fillMax, background);
+	}
+
 	public java.util.Map<String, Object> asMap() {
 		java.util.Map<String, Object> m = new java.util.LinkedHashMap<>();
 		m.put("crop", crop);
@@ -68,6 +106,7 @@ public final class LearnSettings {
 		m.put("tRamp", tRamp);
 		m.put("pairTolerance", pairTolerance);
 		m.put("background", background.name());
+		m.put("augment", augment);
 		return m;
 	}
 }

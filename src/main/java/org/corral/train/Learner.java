@@ -31,11 +31,11 @@ import org.corral.image.Resample;
 import org.corral.loss.BoxLoss;
 import org.corral.model.ModelHeader;
 import org.corral.net.UNet;
-import org.corral.supervision.BoxTightening;
 import org.corral.supervision.Supervision;
 
 /**
- * Learns a {@link UNet} from boxes alone with the {@link BoxLoss}, on the CPU. The schedules (log-
+ * Learns a {@link UNet} from boxes alone with the {@link BoxLoss}, on the CPU, with Adam ("Adam: A
+ * Method for Stochastic Optimization", ICLR 2015). The schedules (log-
  * barrier t, learning rate) are fractions of the total number of steps, so a longer budget
  * stretches them instead of driving t ever higher (which made the plain method collapse).
  */
@@ -49,11 +49,24 @@ public final class Learner {
 		}
 	}
 
+	/**
+	 * A model to continue learning from (adaptation): its parameters are the starting point and its
+	 * object size and pixel size are kept, so the caller gives images already rescaled to them.
+	 */
+	public record Start(UNet net, ModelHeader header) {}
+
 	private final LearnSettings s;
+	private Start from;
 
 	public Learner(LearnSettings settings) {
 		settings.validate();
 		this.s = settings;
+	}
+
+	/** Continue from this model instead of from random weights (DJL-style option). */
+	public Learner optStart(Start start) {
+		this.from = start;
+		return this;
 	}
 
 	public Result learn(List<TrainingImage> images, Progress progress) {
@@ -67,21 +80,20 @@ public final class Learner {
 			if (ti.image().nChannels() != nc)
 				throw new CorralException("Image " + ti.name() + " has " + ti.image().nChannels() + " channel(s), the first image " + nc + "; all learning images need the same channels");
 			PlanarImage norm = Normalise.percentiles(ti.image());
-			// loose boxes are first tightened to the objects inside them; a line of slack remains
-			List<Box> boxes = BoxTightening.tighten(norm, ti.boxes(), s.margin);
-			Supervision sup = Supervision.builder(norm.width, norm.height).optBand(s.band).optMargin(Math.min(1, s.margin))
-				.optFill(s.fillMin, s.fillMax).optBackground(ti.region() != null ? Supervision.BackgroundMode.FULL : s.background)
-				.optRegion(ti.region()).build(boxes);
+			Supervision sup = s.supervision().forImage(norm, ti.boxes(), ti.region());
 			if (sup.boxes.isEmpty()) continue;
 			nBoxes += sup.boxes.size();
 			for (Box b : ti.boxes()) sides.add((b.width() + b.height()) / 2.0); // as drawn: masking sees boxes drawn alike
-			prepared.add(new CropSampler.Prepared(ti.name(), norm, Resample.mean3(norm), sup));
+			prepared.add(new CropSampler.Prepared(ti.name(), norm, Resample.mean3(norm), sup, Normalise.bounds(ti.image(), Normalise.LOW, Normalise.HIGH)));
 		}
 		if (nBoxes == 0) throw new CorralException("Nothing to learn from: none of the " + images.size() + " image(s) has a box inside it");
 
 		Engine.getInstance().setRandomSeed((int) s.seed);
 		SplittableRandom rnd = new SplittableRandom(s.seed);
 		CropSampler sampler = new CropSampler(prepared, s, rnd);
+		if (from != null && (from.header().inChannels != nc || from.header().baseChannels != s.base || from.header().levels != s.levels))
+			throw new CorralException("Cannot continue from the model: it was learned on " + from.header().inChannels + "-channel images with width "
+				+ from.header().baseChannels + " and " + from.header().levels + " levels; these images have " + nc + " channel(s)");
 		UNet net = new UNet(nc, s.base, s.levels);
 		int[] total = {s.steps};
 		boolean shortened = false;
@@ -97,6 +109,11 @@ public final class Learner {
 		try (Trainer trainer = model.newTrainer(cfg)) {
 			int b = s.batch, c = s.crop;
 			trainer.initialize(new Shape(b, nc, c, c));
+			if (from != null) { // same block structure: parameters (and batch-norm statistics) in the same order
+				var src = from.net().getParameters();
+				var to = net.getParameters();
+				for (int i = 0; i < to.size(); i++) src.get(i).getValue().getArray().copyTo(to.get(i).getValue().getArray());
+			}
 			long start = System.nanoTime(), warm = start;
 			double[] acc = new double[5];
 			int accN = 0;
@@ -157,14 +174,18 @@ public final class Learner {
 			h.levels = s.levels;
 			h.normLow = Normalise.LOW;
 			h.normHigh = Normalise.HIGH;
-			h.objectSize = median(sides);
+			h.objectSize = from != null ? from.header().objectSize : median(sides);
 			// the pixel size is remembered only when every learning image is calibrated alike
-			if (!microns.contains(0.0) && java.util.Collections.max(microns) < 1.01 * java.util.Collections.min(microns)) {
+			if (from != null) {
+				h.pixelSize = from.header().pixelSize;
+				h.pixelUnit = from.header().pixelUnit;
+			} else if (!microns.contains(0.0) && java.util.Collections.max(microns) < 1.01 * java.util.Collections.min(microns)) {
 				h.pixelSize = median(microns);
 				h.pixelUnit = "micron";
 			}
 			h.seed = s.seed;
 			h.training = s.asMap();
+			if (from != null) h.counts.put("continuedFrom", from.header().created);
 			h.counts.put("images", prepared.size());
 			h.counts.put("boxes", nBoxes);
 			h.counts.put("steps", total[0]);
@@ -187,13 +208,24 @@ public final class Learner {
 		}
 	}
 
+	/**
+	 * What learning takes from one image's boxes (the preview shows exactly this): the image
+	 * normalised as for learning, then {@link org.corral.supervision.SupervisionSettings#forImage}.
+	 */
+	public static Supervision supervision(TrainingImage ti, LearnSettings s) {
+		return s.supervision().forImage(Normalise.percentiles(ti.image()), ti.boxes(), ti.region());
+	}
+
 	/** Log-barrier t: geometric growth from tStart to tMax over the first tRamp of the run, then held. */
 	double tAt(int step, int total) {
 		double f = Math.min(1, step / (s.tRamp * total));
 		return s.tStart * Math.pow(s.tMax / s.tStart, f);
 	}
 
-	/** Short linear warm-up, then cosine decay to 5 % (common practice). */
+	/**
+	 * Short linear warm-up (common practice), then cosine decay to 5 % (the cosine schedule of "SGDR:
+	 * Stochastic Gradient Descent with Warm Restarts", ICLR 2017, without restarts).
+	 */
 	static double lrFactor(int step, int total) {
 		int warm = Math.max(1, Math.min(20, total / 10));
 		if (step < warm) return (step + 1.0) / warm;

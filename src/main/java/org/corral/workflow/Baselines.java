@@ -19,6 +19,22 @@ public final class Baselines {
 		return BoxMasks.make(one, im.width, im.height, boxes, 0.5).labels();
 	}
 
+	/** The ellipse inscribed in each box: a box-shaped guess that a mask must beat. */
+	public static int[] ellipse(PlanarImage im, List<Box> boxes) {
+		float[] e = new float[im.width * im.height];
+		for (Box b0 : boxes) {
+			Box b = b0.clip(im.width, im.height);
+			if (b == null) continue;
+			double cx = b0.x() + b0.width() / 2.0, cy = b0.y() + b0.height() / 2.0, rx = b0.width() / 2.0, ry = b0.height() / 2.0;
+			for (int y = b.y(); y < b.y1(); y++)
+				for (int x = b.x(); x < b.x1(); x++) {
+					double dx = (x + 0.5 - cx) / rx, dy = (y + 0.5 - cy) / ry;
+					if (dx * dx + dy * dy <= 1) e[y * im.width + x] = 1f;
+				}
+		}
+		return BoxMasks.make(e, im.width, im.height, boxes, 0.5).labels();
+	}
+
 	/**
 	 * Grey value for thresholding: the single channel, or 1 - luminance for colour images (stained
 	 * nuclei are dark in brightfield; ITU-R BT.601 luma weights).

@@ -88,7 +88,7 @@ public final class Benchmark {
 				float[] prob = runner.probability(im, runner.scaleFor(ModelRunner.medianSide(e.getValue())), null, ModelRunner.BOX_FLIPS);
 				predSeconds += (System.nanoTime() - p0) / 1e9;
 				pixels += im.pixels();
-				model.add(Scores.compare(BoxMasks.make(prob, im.width, im.height, e.getValue(), 0.5).labels(), ref));
+				model.add(Scores.compare(BoxMasks.make(prob, im.width, im.height, e.getValue(), BoxMasks.Options.DEFAULTS.withMargin(settings.margin)).labels(), ref));
 				box.add(Scores.compare(Baselines.boxItself(im, e.getValue()), ref));
 				otsu.add(Scores.compare(Baselines.otsuInBox(im, e.getValue()), ref));
 				// no boxes: the whole image

@@ -18,11 +18,15 @@ import org.corral.io.ImageFiles;
 public final class BoxedImages {
 	private BoxedImages() {}
 
+	/** Names of an image's ROI set beside it, in the order they are looked for. */
+	public static final List<String> ROI_SET_ENDINGS = List.of(".rois.zip", ".zip", ".roi");
+
 	/** Image files of a folder, sorted by name; non-image files are skipped. */
 	public static List<Path> images(Path dir) {
 		if (!Files.isDirectory(dir)) throw new CorralException("Image folder " + dir + " does not exist or is not a folder");
 		try (Stream<Path> s = Files.list(dir)) {
-			return s.filter(Files::isRegularFile).filter(ImageFiles::looksLikeImage).sorted().toList();
+			// Corral's own outputs are never taken for images, whatever folder they are in
+			return s.filter(Files::isRegularFile).filter(ImageFiles::looksLikeImage).filter(p -> !OutputNames.isOutput(p)).sorted().toList();
 		} catch (IOException e) {
 			throw new CorralException("Cannot list " + dir + ": " + e.getMessage(), e);
 		}
@@ -48,7 +52,7 @@ public final class BoxedImages {
 		}
 		for (Path img : images(dir)) {
 			String base = ImageFiles.baseName(img);
-			for (String ending : new String[] {".rois.zip", ".zip", ".roi"}) {
+			for (String ending : ROI_SET_ENDINGS) {
 				Path z = dir.resolve(base + ending);
 				if (Files.isRegularFile(z)) {
 					out.put(img, BoxFiles.readRoiZip(z));

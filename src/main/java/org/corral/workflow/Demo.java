@@ -24,15 +24,15 @@ public final class Demo {
 		Map<Path, List<Box>> boxed = BoxedImages.find(images, boxes);
 		Path model = out.resolve("demo-model.zip");
 		log.accept("learning from " + boxed.values().stream().mapToInt(List::size).sum() + " boxes on " + boxed.size() + " images, " + s.steps + " steps");
-		try (Learner.Result r = Jobs.learn(boxed, s, model, progress, note -> log.accept("note: " + note))) {
+		try (Learner.Result r = Jobs.learn(boxed, boxes, s, model, progress, note -> log.accept("note: " + note))) {
 			log.accept("model: " + model);
 		}
 		Path labels = out.resolve("masks");
 		try (ModelRunner m = ModelRunner.open(model)) {
-			Jobs.maskBoxes(boxed, m, labels, log);
+			Jobs.maskBoxes(boxed, boxes, m, org.corral.instances.BoxMasks.Options.DEFAULTS.withMargin(s.margin), labels, null, log);
 		}
 		log.accept("scores against the demo's reference masks:");
 		log.accept(Jobs.score(labels, reference, out.resolve("scores.csv")).strip());
-		log.accept("outputs in " + out.toAbsolutePath() + ": masks/NAME.tif, NAME.rois.zip, NAME.objects.csv, NAME.overlay.png, scores.csv");
+		log.accept("outputs in " + out.toAbsolutePath() + ": masks/NAME.labels.tif, NAME.outlines.zip, NAME.objects.csv, NAME.overlay.png, scores.csv");
 	}
 }

@@ -69,7 +69,8 @@ public final class Jobs {
 	}
 
 	/** Learns and writes the model file atomically; returns the learning result's header figures. */
-	public static Learner.Result learn(Map<Path, List<Box>> boxed, LearnSettings settings, Path modelFile, Progress progress, Consumer<String> notes) {
+	public static Learner.Result learn(Map<Path, List<Box>> boxed, Path boxFile, LearnSettings settings, Path modelFile, Progress progress, Consumer<String> notes) {
+		checkModelTarget(modelFile, boxed.keySet(), boxFile);
 		List<TrainingImage> images = trainingImages(boxed, notes);
 		int nb = images.stream().mapToInt(t -> t.boxes().size()).sum();
 		int given = boxed.values().stream().mapToInt(List::size).sum();
@@ -85,11 +86,33 @@ public final class Jobs {
 		return r;
 	}
 
+	/**
+	 * Refuses a model file that would replace an input: an image, the box file, or an image's ROI set
+	 * (or any existing image file of an image folder).
+	 */
+	public static void checkModelTarget(Path modelFile, java.util.Collection<Path> images, Path boxFile) {
+		List<Path> inputs = new ArrayList<>(images);
+		java.util.Set<Path> folders = new java.util.LinkedHashSet<>();
+		if (boxFile != null) inputs.add(boxFile);
+		for (Path img : images) {
+			Path dir = img.toAbsolutePath().normalize().getParent();
+			folders.add(dir);
+			for (String ending : BoxedImages.ROI_SET_ENDINGS) inputs.add(dir.resolve(ImageFiles.baseName(img) + ending));
+		}
+		OutputNames.checkOutputFile(modelFile, "Model file", inputs);
+		OutputNames.checkNotInFolders(modelFile, "Model file", folders);
+	}
+
 	/** Label images (one per stack position), per-box fits, and the first masked plane for pictures. */
 	public record BoxMaskOutcome(int[][] labels, BoxMasks.Fit[] fits, PlanarImage shown) {}
 
 	/** Masks the boxes of one image (all stack positions); label k = the k-th box of {@code all}. */
 	public static BoxMaskOutcome maskBoxes(ImagePlus imp, List<Box> all, ModelRunner model) {
+		return maskBoxes(imp, all, model, BoxMasks.Options.DEFAULTS);
+	}
+
+	/** As above, with the mask options (a loose box's margin, ...). */
+	public static BoxMaskOutcome maskBoxes(ImagePlus imp, List<Box> all, ModelRunner model, BoxMasks.Options options) {
 		int n = ImageFiles.positions(imp);
 		int w = imp.getWidth(), h = imp.getHeight();
 		int[][] labels = new int[n][];
@@ -103,30 +126,118 @@ public final class Jobs {
 			PlanarImage raw = ImageFiles.planes(imp, zt[0], zt[1]);
 			if (first == null) first = raw;
 			float[] prob = model.probability(raw, model.scaleFor(ModelRunner.medianSide(bs)), null, ModelRunner.BOX_FLIPS);
-			BoxMasks.Result r = BoxMasks.make(prob, w, h, bs, 0.5);
+			BoxMasks.Result r = BoxMasks.make(prob, w, h, bs, options);
 			int[] global = new int[bs.size()];
 			for (int k = 0; k < bs.size(); k++) {
 				global[k] = all.indexOf(bs.get(k)) + 1; // label value = position in the image's box list
 				BoxMasks.Fit f = r.fits().get(k);
-				fits[global[k] - 1] = new BoxMasks.Fit(global[k], bs.get(k), f.area(), f.fill(), f.rowsCrossed(), f.columnsCrossed(), f.meanProbability(), f.flags());
+				fits[global[k] - 1] = f.renumbered(global[k]);
 			}
 			int[] lab = r.labels();
 			for (int i = 0; i < lab.length; i++) if (lab[i] > 0) labels[p - 1][i] = global[lab[i] - 1];
 		}
 		for (int k = 0; k < fits.length; k++)
-			if (fits[k] == null) fits[k] = new BoxMasks.Fit(k + 1, all.get(k), 0, 0, 0, 0, 0, List.of("no-such-slice"));
+			if (fits[k] == null) fits[k] = BoxMasks.Fit.none(k + 1, all.get(k), "no-such-slice");
 		return new BoxMaskOutcome(labels, fits, first);
 	}
 
-	/** Masks the boxes of every image; writes label TIFF, ROI zip, per-box CSV and overlay PNG. */
-	public static void maskBoxes(Map<Path, List<Box>> boxed, ModelRunner model, Path outDir, Consumer<String> log) {
-		mkdirs(outDir);
-		for (Map.Entry<Path, List<Box>> e : boxed.entrySet()) {
+	/**
+	 * How the model for masking boxes is made: continue learning on the boxes being masked
+	 * ({@code adapt}; from scratch when no model is given), for {@code steps} steps (0 = the rule of
+	 * {@link Adaptation#steps}), optionally saving the adapted model; {@code settings} are the
+	 * learning settings (band, margin, seed, ...).
+	 */
+	public record AdaptPlan(boolean adapt, int steps, Path saveTo, LearnSettings settings) {}
+
+	/**
+	 * Masks the boxes of every image of a folder run: first adapts the model to these images' boxes
+	 * (see {@link AdaptPlan}), then writes {@code NAME.labels.tif}, {@code NAME.outlines.zip},
+	 * {@code NAME.objects.csv} and {@code NAME.overlay.png} per image (see {@link OutputNames}) and
+	 * {@code corral-run.json}, the record of the model used. Resumable, and a failing image is listed
+	 * while the others go on ({@link FolderRun}).
+	 */
+	public static FolderRun.Report maskBoxes(Map<Path, List<Box>> boxed, Path boxFile, Path modelFile, AdaptPlan plan, Path outDir,
+		java.util.function.BooleanSupplier cancelled, Progress progress, Consumer<String> log) {
+		java.util.Set<Path> folders = new java.util.LinkedHashSet<>();
+		for (Path p : boxed.keySet()) folders.add(p.toAbsolutePath().normalize().getParent());
+		OutputNames.checkOutputFolder(outDir, folders, boxFile == null ? List.of() : List.of(boxFile));
+		if (plan.saveTo() != null) {
+			checkModelTarget(plan.saveTo(), boxed.keySet(), boxFile);
+			if (modelFile != null) OutputNames.checkOutputFile(plan.saveTo(), "Adapted model file", List.of(modelFile));
+		}
+		if (!plan.adapt() && modelFile == null) throw new CorralException("Give a model file, or let Corral learn from these boxes first (no --no-adapt)");
+		ModelRunner base = modelFile == null ? null : ModelRunner.open(modelFile);
+		try {
+			ModelRunner used = base;
+			Learner.Result adapted = null;
+			RunRecord record = new RunRecord(modelFile, plan.adapt(), base == null);
+			if (plan.adapt()) {
+				List<TrainingImage> images = trainingImages(boxed, note -> log.accept("note: " + note));
+				int nBoxes = images.stream().mapToInt(t -> t.boxes().size()).sum();
+				if (nBoxes == 0) throw new CorralException("None of the boxes lies inside its image: nothing to learn from");
+				LearnSettings s = base == null ? plan.settings() : Adaptation.settings(plan.settings(), base, nBoxes, plan.steps());
+				if (base == null && plan.steps() > 0) s.steps = plan.steps();
+				log.accept(base == null ? "learning from the " + nBoxes + " boxes of these " + images.size() + " image(s), " + s.steps + " steps"
+					: "adapting the model to the " + nBoxes + " boxes of these " + images.size() + " image(s), " + s.steps + " steps (--no-adapt to skip)");
+				long t0 = System.nanoTime();
+				adapted = Adaptation.adapt(base, images, s, progress);
+				record.adapted(adapted.header(), s, (System.nanoTime() - t0) / 1e9);
+				if (plan.saveTo() != null) {
+					ModelFile.write(plan.saveTo(), adapted.header(), adapted.net());
+					record.savedTo = plan.saveTo().toString();
+				}
+				used = new ModelRunner(adapted.header(), adapted.net(), adapted.manager());
+			}
+			FolderRun.Report r = maskBoxes(boxed, boxFile, used, BoxMasks.Options.DEFAULTS.withMargin(plan.settings().margin), outDir, cancelled, log);
+			AtomicFiles.writeString(outDir.resolve(OutputNames.RUN_RECORD), record.json());
+			if (adapted != null) adapted.close();
+			return r;
+		} finally {
+			if (base != null) base.close();
+		}
+	}
+
+	/** Masks the boxes of every image with a model as it is (no adaptation); see the method above. */
+	public static FolderRun.Report maskBoxes(Map<Path, List<Box>> boxed, Path boxFile, ModelRunner m, BoxMasks.Options options, Path outDir,
+		java.util.function.BooleanSupplier cancelled, Consumer<String> log) {
+		return FolderRun.run(new ArrayList<>(boxed.keySet()), boxFile == null ? List.of() : List.of(boxFile), outDir, true, cancelled, log, (img, b) -> {
 			long t0 = System.nanoTime();
-			ImagePlus imp = ImageFiles.open(e.getKey());
-			BoxMaskOutcome o = maskBoxes(imp, e.getValue(), model);
-			writeOutputs(outDir, ImageFiles.baseName(e.getKey()), imp, o.labels(), e.getValue(), o.fits(), o.shown());
-			log.accept(String.format(Locale.ROOT, "%s: %d boxes masked in %.2f s", e.getKey().getFileName(), e.getValue().size(), (System.nanoTime() - t0) / 1e9));
+			ImagePlus imp = ImageFiles.open(img);
+			List<Box> boxes = boxed.get(img);
+			BoxMaskOutcome o = maskBoxes(imp, boxes, m, options);
+			writeOutputs(outDir, b, imp, o.labels(), boxes, o.fits(), o.shown());
+			return String.format(Locale.ROOT, "%s: %d boxes masked in %.2f s", img.getFileName(), boxes.size(), (System.nanoTime() - t0) / 1e9);
+		});
+	}
+
+	/** What model masked the boxes of a folder run, for {@code corral-run.json}. */
+	static final class RunRecord {
+		final String model;
+		final boolean adapt, fromScratch;
+		String savedTo, adaptedCreated;
+		Integer adaptSteps, adaptBoxes, adaptImages;
+		Long seed;
+		Double adaptSeconds, constraintsMet;
+
+		RunRecord(Path model, boolean adapt, boolean fromScratch) {
+			this.model = model == null ? null : model.toAbsolutePath().toString();
+			this.adapt = adapt;
+			this.fromScratch = fromScratch;
+		}
+
+		void adapted(org.corral.model.ModelHeader h, LearnSettings s, double seconds) {
+			adaptedCreated = h.created;
+			adaptSteps = ((Number) h.counts.get("steps")).intValue();
+			adaptBoxes = ((Number) h.counts.get("boxes")).intValue();
+			adaptImages = ((Number) h.counts.get("images")).intValue();
+			seed = s.seed;
+			adaptSeconds = seconds;
+			Object met = h.scores.get("constraintsMet");
+			constraintsMet = met instanceof Number n ? n.doubleValue() : null;
+		}
+
+		String json() {
+			return new com.google.gson.GsonBuilder().setPrettyPrinting().create().toJson(this) + "\n";
 		}
 	}
 
@@ -149,8 +260,8 @@ public final class Jobs {
 		for (int k = 0; k < boxes.size(); k++) {
 			Box b = boxes.get(k);
 			BoxMasks.Fit f = fits[k];
-			csv.append(String.format(Locale.ROOT, "%d,%s,%d,%d,%d,%d,%d,%d,%.4f,%.4f,%.4f,%.4f,%s%n", k + 1, csvText(b.name()), b.x(), b.y(), b.width(), b.height(),
-				b.slice(), f.area(), f.fill(), f.rowsCrossed(), f.columnsCrossed(), f.meanProbability(), String.join(";", f.flags())));
+			csv.append(String.format(Locale.ROOT, "%d,%s,%d,%d,%d,%d,%d,%d,%.4f,%.4f,%.4f,%.4f,%d,%s%n", k + 1, csvText(b.name()), b.x(), b.y(), b.width(), b.height(),
+				b.slice(), f.area(), f.fill(), f.rowsCrossed(), f.columnsCrossed(), f.meanProbability(), f.priorMet() ? 1 : 0, String.join(";", f.flags())));
 		}
 		return csv.toString();
 	}
@@ -163,25 +274,32 @@ public final class Jobs {
 	}
 
 	public static final List<String> BOX_COLUMNS = List.of("box", "name", "x", "y", "width", "height", "slice", "area", "fill", "rows_crossed",
-		"columns_crossed", "mean_probability", "flags");
+		"columns_crossed", "mean_probability", "prior_met", "flags");
 
 	static void writeOutputs(Path outDir, String base, ImagePlus imp, int[][] labels, List<Box> boxes, BoxMasks.Fit[] fits, PlanarImage shown) {
 		int w = imp.getWidth(), h = imp.getHeight();
-		RoiSets.writeZip(outDir.resolve(base + ".rois.zip"), boxOutlines(labels, w, h, boxes));
-		AtomicFiles.writeString(outDir.resolve(base + ".objects.csv"), boxTable(boxes, fits));
-		if (shown != null) ImageFiles.savePng(Overlays.outlines(shown, labels[0]), outDir.resolve(base + ".overlay.png"));
-		ImageFiles.saveTiff(ImageFiles.labelImage(base, labels, w, h, imp.getCalibration()), outDir.resolve(base + ".tif")); // last: marks done
+		RoiSets.writeZip(OutputNames.outlines(outDir, base), boxOutlines(labels, w, h, boxes));
+		AtomicFiles.writeString(OutputNames.table(outDir, base), boxTable(boxes, fits));
+		if (shown != null) ImageFiles.savePng(Overlays.outlines(shown, labels[0]), OutputNames.overlay(outDir, base));
+		ImageFiles.saveTiff(ImageFiles.labelImage(base, labels, w, h, imp.getCalibration()), OutputNames.labels(outDir, base)); // last: marks done
 	}
 
 	/** Per-image and pooled scores of label images against reference label images of the same names. */
 	public static String score(Path labelsDir, Path referenceDir, Path csvOut) {
 		List<Path> refs = BoxedImages.images(referenceDir);
 		if (refs.isEmpty()) throw new CorralException("No reference label images in " + referenceDir);
+		if (csvOut != null) {
+			List<Path> inputs = new ArrayList<>(refs);
+			if (Files.isDirectory(labelsDir)) inputs.addAll(BoxedImages.images(labelsDir));
+			OutputNames.checkOutputFile(csvOut, "Score table", inputs);
+			OutputNames.checkNotInFolders(csvOut, "Score table", List.of(labelsDir, referenceDir));
+		}
 		StringBuilder csv = new StringBuilder("image,reference_objects,predicted_objects,object_dice,object_iou,pixel_dice,precision_50,recall_50,f1_50,mean_ap\n");
 		Scores.Tally all = new Scores.Tally();
 		for (Path ref : refs) {
-			Path pred = labelsDir.resolve(ref.getFileName());
-			if (!Files.isRegularFile(pred)) pred = labelsDir.resolve(ImageFiles.baseName(ref) + ".tif");
+			// Corral's own label image first, else a label image of the reference's own name
+			Path pred = OutputNames.labels(labelsDir, ImageFiles.baseName(ref));
+			if (!Files.isRegularFile(pred)) pred = labelsDir.resolve(ref.getFileName());
 			if (!Files.isRegularFile(pred)) throw new CorralException("No label image for reference " + ref.getFileName() + " in " + labelsDir);
 			int[] sp = new int[2], sr = new int[2];
 			int[] p = ImageFiles.readLabels(pred, sp), r = ImageFiles.readLabels(ref, sr);
@@ -210,69 +328,35 @@ public final class Jobs {
 		if (!Files.isWritable(dir)) throw new CorralException("Output folder " + dir + " is not writable");
 	}
 
-	public static final String FAILURES = "corral-failures.csv";
-
-	/** What a folder run did: images written, skipped because already done, and failures by name. */
-	public record FolderReport(int written, int skipped, Map<String, String> failed) {}
-
 	/**
-	 * Masks every object of every image of a folder (no boxes). Resumable: an image whose outputs
-	 * all exist is skipped; outputs are written atomically, the label image last, so an image only
+	 * Masks every object of every image of a folder (no boxes). Resumable: an image whose label
+	 * image exists is skipped; outputs are written atomically, the label image last, so an image only
 	 * counts as done when it is complete. A failing image is reported and the others go on. With
-	 * {@code propose}, the objects are also written as boxes ({@code OUT/boxes.csv} in the form the
-	 * learner reads, and {@code OUT/NAME.boxes.zip} rectangles) for the user to correct and learn again.
+	 * {@code propose}, the objects are also written as boxes ({@code OUT/corral-proposed-boxes.csv} in
+	 * the form the learner reads, and {@code OUT/NAME.proposed-boxes.zip} rectangles) for the user to
+	 * correct and learn again.
 	 */
-	public static FolderReport maskImages(List<Path> images, ModelRunner model, Path outDir, double objectSize, boolean propose,
+	public static FolderRun.Report maskImages(List<Path> images, ModelRunner model, Path outDir, double objectSize, boolean propose,
 		java.util.function.BooleanSupplier cancelled, Consumer<String> log) {
-		mkdirs(outDir);
-		int written = 0, skipped = 0;
-		Map<String, String> failed = new java.util.LinkedHashMap<>();
 		StringBuilder proposals = new StringBuilder("image,x,y,width,height\n");
-		for (Path img : images) {
-			if (cancelled != null && cancelled.getAsBoolean()) throw new java.util.concurrent.CancellationException("folder run cancelled; finished images are complete, run again to resume");
-			String base = ImageFiles.baseName(img);
-			Path label = outDir.resolve(base + ".tif");
-			// the label image is written last, so its presence means the image is complete; proposing
-			// rebuilds the box file from every image, so it processes them all again
-			if (!propose && Files.isRegularFile(label)) {
-				skipped++;
-				log.accept(img.getFileName() + ": already done, skipped");
-				continue;
+		// proposing rebuilds the box file from every image, so it processes them all again
+		FolderRun.Report r = FolderRun.run(images, List.of(), outDir, !propose, cancelled, log, (img, base) -> {
+			long t0 = System.nanoTime();
+			ImagePlus imp = ImageFiles.open(img);
+			WholeImageOutcome o = maskWhole(imp, model, objectSize);
+			for (Roi roi : o.proposals()) {
+				java.awt.Rectangle b = roi.getBounds();
+				proposals.append(String.format(Locale.ROOT, "%s,%d,%d,%d,%d%n", img.getFileName(), b.x, b.y, b.width, b.height));
 			}
-			try {
-				long t0 = System.nanoTime();
-				ImagePlus imp = ImageFiles.open(img);
-				WholeImageOutcome o = maskWhole(imp, model, objectSize);
-				for (Roi r : o.proposals()) {
-					java.awt.Rectangle b = r.getBounds();
-					proposals.append(String.format(Locale.ROOT, "%s,%d,%d,%d,%d%n", img.getFileName(), b.x, b.y, b.width, b.height));
-				}
-				RoiSets.writeZip(outDir.resolve(base + ".rois.zip"), o.outlines());
-				AtomicFiles.writeString(outDir.resolve(base + ".objects.csv"), o.table());
-				if (propose) RoiSets.writeZip(outDir.resolve(base + ".boxes.zip"), o.proposals());
-				if (o.shown() != null) ImageFiles.savePng(Overlays.outlines(o.shown(), o.labels()[0]), outDir.resolve(base + ".overlay.png"));
-				ImageFiles.saveTiff(ImageFiles.labelImage(base, o.labels(), imp.getWidth(), imp.getHeight(), imp.getCalibration()), label);
-				log.accept(String.format(Locale.ROOT, "%s: %d objects in %.2f s", img.getFileName(), o.count(), (System.nanoTime() - t0) / 1e9));
-				written++;
-			} catch (CorralException | java.io.UncheckedIOException | IllegalArgumentException e) {
-				failed.put(img.getFileName().toString(), e.getMessage());
-				log.accept(img.getFileName() + ": FAILED: " + e.getMessage());
-			}
-		}
-		if (propose) AtomicFiles.writeString(outDir.resolve("boxes.csv"), proposals.toString());
-		// failures are kept in a file too, for batch jobs nobody watches; a clean rerun removes it
-		Path failures = outDir.resolve(FAILURES);
-		if (failed.isEmpty()) try {
-			Files.deleteIfExists(failures);
-		} catch (java.io.IOException e) {
-			throw new CorralException("Cannot remove " + failures + ": " + e.getMessage(), e);
-		}
-		else {
-			StringBuilder f = new StringBuilder("image,error\n");
-			failed.forEach((k, v) -> f.append(csvText(k)).append(',').append(csvText(v)).append('\n'));
-			AtomicFiles.writeString(failures, f.toString());
-		}
-		return new FolderReport(written, skipped, failed);
+			RoiSets.writeZip(OutputNames.outlines(outDir, base), o.outlines());
+			AtomicFiles.writeString(OutputNames.table(outDir, base), o.table());
+			if (propose) RoiSets.writeZip(OutputNames.proposedBoxes(outDir, base), o.proposals());
+			if (o.shown() != null) ImageFiles.savePng(Overlays.outlines(o.shown(), o.labels()[0]), OutputNames.overlay(outDir, base));
+			ImageFiles.saveTiff(ImageFiles.labelImage(base, o.labels(), imp.getWidth(), imp.getHeight(), imp.getCalibration()), OutputNames.labels(outDir, base));
+			return String.format(Locale.ROOT, "%s: %d objects in %.2f s", img.getFileName(), o.count(), (System.nanoTime() - t0) / 1e9);
+		});
+		if (propose) AtomicFiles.writeString(outDir.resolve(OutputNames.PROPOSED_CSV), proposals.toString());
+		return r;
 	}
 
 	/** Whole-image result of one image: labels per stack position, outlines, proposed boxes, table. */

@@ -25,7 +25,9 @@ import org.corral.ReferenceData;
 import org.corral.io.AtomicFiles;
 import org.corral.io.ImageFiles;
 import org.junit.jupiter.api.BeforeAll;
+import org.junit.jupiter.api.DynamicTest;
 import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.TestFactory;
 import org.junit.jupiter.api.io.TempDir;
 
 /**
@@ -37,8 +39,19 @@ class BadInputTest {
 	static Path dir;
 	static Path model, demoImages, demoBoxes;
 
-	/** One row: a name, the argv to run (built lazily), what the error must say (null = success), and a check. */
-	record Case(String name, Setup argv, String error, Check after) {}
+	/**
+	 * One row: a name, the argv to run (built lazily; or {@code direct}, code run instead of the
+	 * command line), what the error must say (null = success), and a check afterwards.
+	 */
+	record Case(String name, Setup argv, String error, Check after, Check direct) {
+		Case(String name, Setup argv, String error, Check after) {
+			this(name, argv, error, after, null);
+		}
+
+		static Case direct(String name, String error, Check code) {
+			return new Case(name, null, error, null, code);
+		}
+	}
 
 	interface Setup {
 		String[] make(Path work) throws Exception;
@@ -100,8 +113,8 @@ class BadInputTest {
 			Files.write(in.resolve("bad.tif"), new byte[] {'I', 'I', 42, 0, 1, 2, 3});
 			return maskImage(in, model, w);
 		}, "exit 3", w -> {
-			assertTrue(Files.exists(w.resolve("out/good.tif")));
-			assertFalse(Files.exists(w.resolve("out/bad.tif")));
+			assertTrue(Files.exists(w.resolve("out/good.labels.tif")));
+			assertFalse(Files.exists(w.resolve("out/bad.labels.tif")));
 			String f = Files.readString(w.resolve("out/corral-failures.csv"));
 			assertTrue(f.contains("bad.tif,\"Cannot read image"), f); // quoted: the message holds a comma
 		}));
@@ -111,19 +124,19 @@ class BadInputTest {
 			float[] v = new float[64 * 48];
 			for (int i = 0; i < v.length; i++) v[i] = i % 7 == 0 ? Float.NaN : i % 11 == 0 ? Float.POSITIVE_INFINITY : i % 5;
 			return maskImage(folderWith(w, "nan.tif", new ImagePlus("n", new FloatProcessor(64, 48, v))), model, w);
-		}, null, w -> assertTrue(Files.exists(w.resolve("out/nan.tif")))));
+		}, null, w -> assertTrue(Files.exists(w.resolve("out/nan.labels.tif")))));
 		c.add(new Case("1x1 image", w -> maskImage(folderWith(w, "dot.tif", new ImagePlus("d", new FloatProcessor(1, 1))), model, w), null,
-			w -> assertEquals(1, ImageFiles.open(w.resolve("out/dot.tif")).getWidth())));
+			w -> assertEquals(1, ImageFiles.open(w.resolve("out/dot.labels.tif")).getWidth())));
 		c.add(new Case("wrong channel count for the model (RGB vs grey)", w -> maskImage(folderWith(w, "rgb.tif", new ImagePlus("c", new ColorProcessor(32, 32))), model, w),
 			"exit 3", w -> {
-				assertFalse(Files.exists(w.resolve("out/rgb.tif")));
+				assertFalse(Files.exists(w.resolve("out/rgb.labels.tif")));
 				assertTrue(Files.readString(w.resolve("out/corral-failures.csv")).contains("rgb.tif,The model was learned on 1-channel images; this image has 3"));
 			}));
 		c.add(new Case("non-image files in the folder are skipped", w -> {
 			Path in = folderWith(w, "g.tif", new ImagePlus("g", new FloatProcessor(40, 30)));
 			write(in.resolve("notes.txt"), "hello");
 			return maskImage(in, model, w);
-		}, null, w -> assertEquals(List.of("g.objects.csv", "g.overlay.png", "g.rois.zip", "g.tif"), list(w.resolve("out")), "no failure file either")));
+		}, null, w -> assertEquals(List.of("g.labels.tif", "g.objects.csv", "g.outlines.zip", "g.overlay.png"), list(w.resolve("out")), "no failure file either")));
 		c.add(new Case("empty image folder", w -> maskImage(Files.createDirectories(w.resolve("in")), model, w), "No images", null));
 		// boxes
 		c.add(new Case("no boxes at all: learning refuses", w -> learn(demoImages, write(w.resolve("b.csv"), "image,x,y,width,height\n"), w), "No boxes",
@@ -152,7 +165,7 @@ class BadInputTest {
 			write(w.resolve("file-not-folder"), "x").toString()}, "output folder", null));
 		c.add(new Case("unknown option", w -> new String[] {"learn", "--images", "x", "--model", "y", "--stpes", "3"}, "unknown option --stpes", null));
 		c.add(new Case("invalid setting", w -> new String[] {"learn", "--images", demoImages.toString(), "--boxes", demoBoxes.toString(), "--model",
-			w.resolve("m.zip").toString(), "--band", "0"}, "band width", w -> assertFalse(Files.exists(w.resolve("m.zip")))));
+			w.resolve("m.zip").toString(), "--band", "0"}, "--band must be a whole number from 1", w -> assertFalse(Files.exists(w.resolve("m.zip")))));
 		c.add(new Case("score: label image of another size", w -> {
 			ImageFiles.saveTiff(new ImagePlus("a", new FloatProcessor(5, 5)), w.resolve("lab/seedcoat-01.tif"));
 			ImageFiles.saveTiff(new ImagePlus("a", new FloatProcessor(6, 5)), w.resolve("ref/seedcoat-01.tif"));
@@ -174,29 +187,32 @@ class BadInputTest {
 		}
 	}
 
-	@Test
-	void everyBadInputGetsAClearErrorAndLeavesNoPartialOutput() throws Exception {
-		List<Case> cases = cases();
-		System.out.println("bad-input table: " + cases.size() + " cases (+1 disk-full case below)");
-		int k = 0;
-		for (Case c : cases) {
-			Path work = Files.createDirectories(dir.resolve("case" + (++k)));
-			String[] argv = c.argv().make(work);
-			String error = null;
-			int code;
-			try {
-				code = Main.run(argv);
+	/** Every row is its own test, so one failure does not hide the others. */
+	@TestFactory
+	Stream<DynamicTest> everyBadInputGetsAClearErrorAndLeavesNoPartialOutput() {
+		List<Case> cases = new ArrayList<>(cases());
+		cases.addAll(DataSafetyCases.cases(() -> model, demoImages, demoBoxes));
+		int[] k = {0};
+		return cases.stream().map(c -> DynamicTest.dynamicTest(c.name(), () -> run(c, Files.createDirectories(dir.resolve("case" + (++k[0]))))));
+	}
+
+	static void run(Case c, Path work) throws Exception {
+		String error = null;
+		try {
+			if (c.direct() != null) c.direct().run(work);
+			else {
+				int code = Main.run(c.argv().make(work));
 				if (code != 0) error = "exit " + code;
-			} catch (CorralException e) {
-				error = e.getMessage();
 			}
-			if (c.error() == null) assertEquals(null, error, c.name());
-			else if (error == null) fail(c.name() + ": expected an error mentioning '" + c.error() + "', it succeeded");
-			else assertTrue(error.contains(c.error()), c.name() + ": '" + error + "' should mention '" + c.error() + "'");
-			if (c.after() != null) c.after().run(work);
-			try (Stream<Path> s = Files.walk(work)) {
-				assertFalse(s.anyMatch(p -> p.getFileName().toString().endsWith(".part")), c.name() + ": temporary file left behind");
-			}
+		} catch (CorralException e) {
+			error = e.getMessage();
+		}
+		if (c.error() == null) assertEquals(null, error, c.name());
+		else if (error == null) fail(c.name() + ": expected an error mentioning '" + c.error() + "', it succeeded");
+		else assertTrue(error.contains(c.error()), c.name() + ": '" + error + "' should mention '" + c.error() + "'");
+		if (c.after() != null) c.after().run(work);
+		try (Stream<Path> s = Files.walk(work)) {
+			assertFalse(s.anyMatch(p -> p.getFileName().toString().endsWith(".part")), c.name() + ": temporary file left behind");
 		}
 	}
 

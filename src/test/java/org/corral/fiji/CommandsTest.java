@@ -128,6 +128,35 @@ class CommandsTest {
 		assertEquals(demoBoxes.get("seedcoat-04.tif").size(), ImageJBoxes.of(boxed).boxes().size());
 	}
 
+	/** The preview must show what learning uses: same boxes after tightening, background, bands and bounds. */
+	@Test
+	void previewShowsExactlyTheSupervisionLearningUses() throws Exception {
+		ImagePlus loose = IJ.openImage(ReferenceData.demo().resolve("images").resolve("seedcoat-03.tif").toString());
+		Overlay ov = new Overlay();
+		List<Box> grown = demoBoxes.get("seedcoat-03.tif").stream().map(b -> b.grown(3)).toList();
+		for (Box b : grown) {
+			Roi r = new Roi(b.x(), b.y(), b.width(), b.height());
+			r.setName(b.name());
+			ov.add(r);
+		}
+		loose.setOverlay(ov);
+		PreviewBoxSupervision p = (PreviewBoxSupervision) run(PreviewBoxSupervision.class, Map.of("image", loose, "band", "4", "margin", "3", "complete", "false"))
+			.getDelegateObject();
+		org.corral.train.LearnSettings s = new org.corral.train.LearnSettings();
+		s.band = 4;
+		s.margin = 3;
+		org.corral.supervision.Supervision learned = org.corral.train.Learner.supervision(
+			org.corral.workflow.Jobs.trainingImages(loose, "x", grown, null, x -> {}).get(0), s);
+		assertEquals(learned.boxes.stream().map(b -> List.of(b.x(), b.y(), b.width(), b.height())).toList(),
+			p.shown.boxes.stream().map(b -> List.of(b.x(), b.y(), b.width(), b.height())).toList(), "tightened boxes");
+		assertTrue(learned.boxes.stream().mapToLong(Box::area).sum() < grown.stream().mapToLong(Box::area).sum(), "the loose boxes were tightened");
+		assertEquals(learned.constraints, p.shown.constraints, "bands and size bounds");
+		org.junit.jupiter.api.Assertions.assertArrayEquals(learned.background, p.shown.background, "known background");
+		assertTrue(learned.constraints.stream().anyMatch(c -> c.kind() == org.corral.supervision.Constraint.Kind.values()[0]));
+		// the drawn boxes stay in the overlay as they were, so learning still reads the user's boxes
+		assertEquals(grown.size(), ImageJBoxes.of(loose).boxes().size());
+	}
+
 	@Test
 	void processFolderWritesEveryImageAndResumes() throws Exception {
 		Path out = dir.resolve("folder-out");
@@ -135,7 +164,7 @@ class CommandsTest {
 			"mode", "whole images");
 		String first = (String) run(ProcessFolder.class, in).getOutput("summary");
 		assertTrue(first.startsWith("4 written, 0 skipped"), first);
-		for (int i = 1; i <= 4; i++) assertTrue(Files.exists(out.resolve(String.format("seedcoat-%02d.tif", i))));
+		for (int i = 1; i <= 4; i++) assertTrue(Files.exists(out.resolve(String.format("seedcoat-%02d.labels.tif", i))));
 		String again = (String) run(ProcessFolder.class, in).getOutput("summary");
 		assertTrue(again.startsWith("0 written, 4 skipped"), again);
 	}

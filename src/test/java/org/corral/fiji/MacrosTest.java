@@ -55,7 +55,7 @@ class MacrosTest {
 		assertTrue(Files.size(model) > 10_000);
 		for (int i = 1; i <= 4; i++) {
 			String base = String.format("seedcoat-%02d", i);
-			int[] lab = ImageFiles.readLabels(out.resolve(base + ".tif"), null);
+			int[] lab = ImageFiles.readLabels(out.resolve(base + ".labels.tif"), null);
 			int[] ref = ImageFiles.readLabels(demo.resolve("reference").resolve(base + ".tif"), null);
 			Scores.Tally t = Scores.compare(lab, ref);
 			assertTrue(t.f1(0.5) > 0.6, base + " F1 " + t.f1(0.5));
@@ -70,7 +70,7 @@ class MacrosTest {
 		ResultsTable rt = ResultsTable.getResultsTable("Corral folder scores");
 		assertEquals(4, rt.size());
 		assertEquals("seedcoat-01.tif", rt.getStringValue("image", 0));
-		int[] lab = ImageFiles.readLabels(out.resolve("seedcoat-03.tif"), null);
+		int[] lab = ImageFiles.readLabels(out.resolve("seedcoat-03.labels.tif"), null);
 		int[] ref = ImageFiles.readLabels(demo.resolve("reference").resolve("seedcoat-03.tif"), null);
 		assertEquals(Scores.compare(lab, ref).objectDice(), rt.getValue("object_dice", 2), 1e-9, "the table holds the core's score");
 	}
@@ -119,7 +119,7 @@ class MacrosTest {
 	void aFailingCommandStopsTheMacroWithItsMessage() {
 		Interpreter in = new Interpreter();
 		in.setIgnoreErrors(true);
-		in.run("run(\"Process Folder\", \"input=[/no/such/folder] output=[" + dir.resolve("x") + "] model=[/no/such/model.zip] mode=[whole images]\");", "");
+		in.run("run(\"Corral Process Folder\", \"input=[/no/such/folder] output=[" + dir.resolve("x") + "] model=[/no/such/model.zip] mode=[whole images]\");", "");
 		assertTrue(in.getErrorMessage() != null && in.getErrorMessage().contains("does not exist"), in.getErrorMessage());
 	}
 }

@@ -41,7 +41,7 @@ class LearnerCancelTest {
 				return reports.get() >= 3;
 			}
 		};
-		CancellationException e = assertThrows(CancellationException.class, () -> Jobs.learn(boxed, s, model, p, n -> {}));
+		CancellationException e = assertThrows(CancellationException.class, () -> Jobs.learn(boxed, null, s, model, p, n -> {}));
 		assertTrue(e.getMessage().contains("step 4"), e.getMessage());
 		assertArrayEquals(before, Files.readAllBytes(model));
 		try (var files = Files.list(dir)) {

@@ -31,15 +31,15 @@ class DemoJobTest {
 		for (Map.Entry<String, List<Box>> e : boxes.entrySet()) {
 			String base = e.getKey().replace(".tif", "");
 			Path masks = out.resolve("masks");
-			for (String ending : new String[] {".tif", ".rois.zip", ".objects.csv", ".overlay.png"})
+			for (String ending : new String[] {".labels.tif", ".outlines.zip", ".objects.csv", ".overlay.png"})
 				assertTrue(Files.size(masks.resolve(base + ending)) > 0, base + ending);
-			int[] labels = ImageFiles.readLabels(masks.resolve(base + ".tif"), null);
+			int[] labels = ImageFiles.readLabels(masks.resolve(base + ".labels.tif"), null);
 			java.util.Set<Integer> distinct = new java.util.TreeSet<>();
 			for (int v : labels) if (v > 0) distinct.add(v);
 			assertTrue(distinct.stream().allMatch(v -> v <= e.getValue().size()), "label values are box indices");
 			assertTrue(distinct.size() >= e.getValue().size() - 1, "nearly every box got a mask: " + distinct.size() + " of " + e.getValue().size());
 			assertEquals(e.getValue().size() + 1, Files.readAllLines(masks.resolve(base + ".objects.csv")).size(), "one row per box");
-			assertEquals(distinct.size(), countEntries(masks.resolve(base + ".rois.zip")), "one outline per non-empty mask");
+			assertEquals(distinct.size(), countEntries(masks.resolve(base + ".outlines.zip")), "one outline per non-empty mask");
 		}
 		List<String> score = Files.readAllLines(out.resolve("scores.csv"));
 		String[] all = score.get(score.size() - 1).split(",");
@@ -79,11 +79,11 @@ class DemoJobTest {
 			s.minutes = 0;
 			s.seed = seeds[i];
 			Path model = out.resolve("m" + i + ".zip");
-			Jobs.learn(boxed, s, model, org.corral.train.Progress.silent(), n -> {}).close();
+			Jobs.learn(boxed, null, s, model, org.corral.train.Progress.silent(), n -> {}).close();
 			try (var m = org.corral.predict.ModelRunner.open(model)) {
-				Jobs.maskBoxes(boxed, m, out.resolve("r" + i), x -> {});
+				Jobs.maskBoxes(boxed, null, m, org.corral.instances.BoxMasks.Options.DEFAULTS, out.resolve("r" + i), null, x -> {});
 			}
-			runs[i] = ImageFiles.readLabels(out.resolve("r" + i).resolve("seedcoat-01.tif"), null);
+			runs[i] = ImageFiles.readLabels(out.resolve("r" + i).resolve("seedcoat-01.labels.tif"), null);
 			models[i] = parameters(model);
 		}
 		assertArrayEquals(runs[0], runs[1], "same seed, same thread count: identical label image");

@@ -40,16 +40,16 @@ class ProposeLoopTest {
 		Path images = ReferenceData.demo().resolve("images");
 		var boxed = BoxedImages.find(images, ReferenceData.demo().resolve("boxes.csv"));
 		Path first = dir.resolve("first.zip");
-		Jobs.learn(boxed, steps(60), first, Progress.silent(), n -> {}).close();
+		Jobs.learn(boxed, null, steps(60), first, Progress.silent(), n -> {}).close();
 		Path proposed = dir.resolve("proposed");
 		try (ModelRunner m = ModelRunner.open(first)) {
-			Jobs.FolderReport r = Jobs.maskImages(BoxedImages.images(images), m, proposed, 0, true, null, x -> {});
+			org.corral.workflow.FolderRun.Report r = Jobs.maskImages(BoxedImages.images(images), m, proposed, 0, true, null, x -> {});
 			assertEquals(4, r.written());
 		}
-		Map<String, List<Box>> props = BoxFiles.readCsv(proposed.resolve("boxes.csv"));
+		Map<String, List<Box>> props = BoxFiles.readCsv(proposed.resolve("corral-proposed-boxes.csv"));
 		assertEquals(4, props.size());
 		for (String name : props.keySet())
-			assertEquals(props.get(name).size(), BoxFiles.readRoiZip(proposed.resolve(name.replace(".tif", ".boxes.zip"))).size(), "ROI zip of rectangles matches the CSV");
+			assertEquals(props.get(name).size(), BoxFiles.readRoiZip(proposed.resolve(name.replace(".tif", ".proposed-boxes.zip"))).size(), "ROI zip of rectangles matches the CSV");
 		// the user drops every third proposal and learns again from the corrected file
 		StringBuilder kept = new StringBuilder("image,x,y,width,height\n");
 		int n = 0, dropped = 0;
@@ -62,7 +62,7 @@ class ProposeLoopTest {
 		Path second = dir.resolve("second.zip");
 		var relearn = BoxedImages.find(images, corrected);
 		LearnSettings s = steps(60);
-		Jobs.learn(relearn, s, second, Progress.silent(), x -> {}).close();
+		Jobs.learn(relearn, null, s, second, Progress.silent(), x -> {}).close();
 		// the relearned model masks the true boxes well
 		Scores.Tally t = new Scores.Tally(), box = new Scores.Tally();
 		try (ModelRunner m = ModelRunner.open(second)) {
@@ -81,7 +81,7 @@ class ProposeLoopTest {
 		Path images = ReferenceData.demo().resolve("images");
 		var boxed = BoxedImages.find(images, ReferenceData.demo().resolve("boxes.csv"));
 		Path model = dir.resolve("m.zip");
-		Jobs.learn(boxed, steps(10), model, Progress.silent(), n -> {}).close();
+		Jobs.learn(boxed, null, steps(10), model, Progress.silent(), n -> {}).close();
 		Path out = dir.resolve("out");
 		AtomicInteger logged = new AtomicInteger();
 		List<String> log = new ArrayList<>();
@@ -91,9 +91,9 @@ class ProposeLoopTest {
 				log.add(x);
 			}));
 			try (var files = Files.list(out)) {
-				assertEquals(2, files.filter(p -> p.toString().endsWith(".tif")).count(), "two images complete, nothing half-written");
+				assertEquals(2, files.filter(p -> p.toString().endsWith(".labels.tif")).count(), "two images complete, nothing half-written");
 			}
-			Jobs.FolderReport r = Jobs.maskImages(BoxedImages.images(images), m, out, 0, false, null, log::add);
+			org.corral.workflow.FolderRun.Report r = Jobs.maskImages(BoxedImages.images(images), m, out, 0, false, null, log::add);
 			assertEquals(2, r.written());
 			assertEquals(2, r.skipped());
 		}

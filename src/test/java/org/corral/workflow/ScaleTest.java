@@ -32,7 +32,7 @@ class ScaleTest {
 		LearnSettings s = new LearnSettings();
 		s.steps = 100;
 		s.minutes = 0;
-		Jobs.learn(boxed, s, dir.resolve("m.zip"), Progress.silent(), n -> {}).close();
+		Jobs.learn(boxed, null, s, dir.resolve("m.zip"), Progress.silent(), n -> {}).close();
 		double f = 2.5;
 		Scores.Tally scaled = new Scores.Tally(), unscaled = new Scores.Tally(), whole = new Scores.Tally();
 		try (ModelRunner m = ModelRunner.open(dir.resolve("m.zip"))) {

@@ -48,11 +48,11 @@ class StackTest {
 		LearnSettings s = new LearnSettings();
 		s.steps = 60;
 		s.minutes = 0;
-		Jobs.learn(boxed, s, dir.resolve("m.zip"), Progress.silent(), n -> {}).close();
+		Jobs.learn(boxed, null, s, dir.resolve("m.zip"), Progress.silent(), n -> {}).close();
 		try (ModelRunner m = ModelRunner.open(dir.resolve("m.zip"))) {
-			Jobs.maskBoxes(boxed, m, dir.resolve("out"), x -> {});
+			Jobs.maskBoxes(boxed, null, m, org.corral.instances.BoxMasks.Options.DEFAULTS, dir.resolve("out"), null, x -> {});
 		}
-		ImagePlus labels = ImageFiles.open(dir.resolve("out/movie.tif"));
+		ImagePlus labels = ImageFiles.open(dir.resolve("out/movie.labels.tif"));
 		assertEquals(3, labels.getStackSize());
 		int[] max = new int[3], min = new int[3];
 		for (int z = 0; z < 3; z++) {
