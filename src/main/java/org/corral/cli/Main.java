@@ -279,6 +279,11 @@ public final class Main {
 			a.number("w-pair", s.weights.pairwise(), 0, any));
 		if (a.has("all-boxed")) s.background = Supervision.BackgroundMode.FULL;
 		if (a.has("partial")) s.background = Supervision.BackgroundMode.RING; // the default, named for scripts
+		String cen = a.str("centres", null);
+		if (cen != null) {
+			if (!cen.equals("on") && !cen.equals("off")) throw new CorralException(a.job() + ": --centres must be on or off, got '" + cen + "'");
+			s.centres = cen.equals("on");
+		}
 		String aug = a.str("augment", null);
 		if (aug != null) {
 			if (!aug.equals("on") && !aug.equals("off")) throw new CorralException(a.job() + ": --augment must be on or off, got '" + aug + "'");

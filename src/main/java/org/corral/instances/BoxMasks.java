@@ -6,9 +6,10 @@ import java.util.List;
 import org.corral.boxes.Box;
 
 /**
- * One mask per box from a probability map: inside each box the pixels above the threshold, the
- * connected component with the most probability mass, holes filled. When a box yields nothing at
- * the threshold, lower thresholds are tried (down to {@link #MIN_THRESHOLD}). Pixels claimed by
+ * One mask per box from a probability map: inside each box the connected piece with the most
+ * probability mass above a threshold, holes filled, the threshold fitted per box so that the mask
+ * obeys its box ({@link BoxFit}; without fitting, the given threshold, and lower ones down to
+ * {@link #MIN_THRESHOLD} when a box yields nothing). Pixels claimed by
  * two boxes go to the box whose centre is nearer, measured in units of each box's half-sides, and
  * each object then keeps its largest piece, so no pixel belongs to two objects. An exact duplicate of
  * an earlier box gets no pixels and the flag {@code duplicate-of-k}; a box wholly outside the image
@@ -37,7 +38,6 @@ public final class BoxMasks {
 		return make(prob, w, h, boxes, new Options(threshold, false, 0, 1));
 	}
 
-	public static String VARIANT = System.getProperty("corral.fit", "tight");
 
 	/** Per-box quality figures, computed against the box the mask was made for. */
 	public record Fit(int index, Box box, long area, double fill, double rowsCrossed, double columnsCrossed,
@@ -56,7 +56,6 @@ public final class BoxMasks {
 
 	public static Result make(float[] prob, int w, int h, List<Box> boxes, Options opt) {
 		int n = boxes.size();
-		boolean[] met = new boolean[n + 1];
 		int[] owner = new int[w * h];
 		double[] ownerDist = new double[w * h];
 		int[] duplicateOf = new int[n + 1];
@@ -74,9 +73,7 @@ public final class BoxMasks {
 				float[] p = new float[b.width() * b.height()];
 				for (int y = 0; y < b.height(); y++)
 					for (int x = 0; x < b.width(); x++) p[y * b.width() + x] = prob[(y + b.y()) * w + x + b.x()];
-				BoxFit.Fitted f = BoxFit.fit(p, b.width(), b.height(), opt.threshold(), opt.margin(), opt.fillMax(), VARIANT);
-				m = f.mask();
-				met[k] = f.priorMet();
+				m = BoxFit.fit(p, b.width(), b.height(), opt.threshold(), opt.margin(), opt.fillMax()).mask();
 			} else m = boxMask(prob, w, b, opt.threshold());
 			double cx = boxes.get(k - 1).centreX() - 0.5, cy = boxes.get(k - 1).centreY() - 0.5;
 			double rx = boxes.get(k - 1).width() / 2.0, ry = boxes.get(k - 1).height() / 2.0;

@@ -32,12 +32,24 @@ import org.corral.supervision.Constraint;
 public final class BoxLoss {
 
 	/** The loss and its parts, as scalar NDArrays (the first one carries the gradient). */
-	public record Parts(NDArray total, NDArray background, NDArray constraints, NDArray pairwise, NDArray met, NDArray z) {}
+	public record Parts(NDArray total, NDArray background, NDArray constraints, NDArray pairwise, NDArray met, NDArray z, NDArray centre) {}
 
 	/** Supervision of a batch as arrays; built once per step in plain Java. */
 	public static final class Targets {
 		final NDArray background, pairH, pairV, corners, target, sign, norm, weight;
 		final int nConstraints;
+		NDArray centre, centreWeight;
+
+		/**
+		 * The centre map's targets ([B,1,H,W]): inside each box 1 - its normalised elliptical radius
+		 * (1 at the centre, 0 from the inscribed ellipse outwards), 0 on known background; weight 1
+		 * where the target is known.
+		 */
+		public Targets optCentre(NDManager m, int b, int h, int w, float[] target, float[] weight) {
+			this.centre = m.create(target, new Shape(b, 1, h, w));
+			this.centreWeight = m.create(weight, new Shape(b, 1, h, w));
+			return this;
+		}
 
 		/**
 		 * @param background [B,1,H,W] 1 = known background
@@ -87,7 +99,18 @@ public final class BoxLoss {
 
 	private BoxLoss() {}
 
-	public static Parts compute(NDArray logits, Targets tg, double t, LossWeights weights) {
+	/** Weight of the centre-map term (ours, after the centre heatmaps of "Objects as points", 2019). */
+	public static final double CENTRE_WEIGHT = 1;
+
+	public static Parts compute(NDArray all, Targets tg, double t, LossWeights weights) {
+		NDArray logits = all, centre = null;
+		if (all.getShape().get(1) == 2) {
+			logits = all.get(new NDIndex(":, 0:1"));
+			NDArray c = all.get(new NDIndex(":, 1:2"));
+			// binary cross-entropy with soft targets: softplus(x) - x t, where the target is known
+			NDArray n = tg.centreWeight.sum().maximum(1f);
+			centre = Activation.softPlus(c).sub(c.mul(tg.centre)).mul(tg.centreWeight).sum().div(n);
+		}
 		NDArray s = Activation.sigmoid(logits);
 		// background: -log(1 - sigmoid(x)) = softplus(x), stable for large x
 		NDArray bgCount = tg.background.sum().maximum(1f);
@@ -118,7 +141,9 @@ public final class BoxLoss {
 			met = bg.onesLike();
 			z = null;
 		}
-		return new Parts(total, bg, cons, pair, met, z);
+		if (centre != null) total = total.add(centre.mul((float) CENTRE_WEIGHT));
+		else centre = bg.zerosLike();
+		return new Parts(total, bg, cons, pair, met, z, centre);
 	}
 
 	private static NDArray same(NDArray a, NDArray b) {

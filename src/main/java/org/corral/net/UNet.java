@@ -30,19 +30,29 @@ import java.util.List;
 public final class UNet extends AbstractBlock {
 	private static final byte VERSION = 1;
 
-	private final int inChannels, base, levels;
+	private final int inChannels, base, levels, outputs;
 	private final List<Block> down = new ArrayList<>(), up = new ArrayList<>();
 	private final Block head;
 
 	public UNet(int inChannels, int base, int levels) {
+		this(inChannels, base, levels, 1);
+	}
+
+	/**
+	 * @param outputs 1: object logits; 2: also logits of the centre map, which peaks at each object's
+	 *                centre and falls to 0 at its edge (for splitting touching objects)
+	 */
+	public UNet(int inChannels, int base, int levels, int outputs) {
 		super(VERSION);
+		if (outputs < 1 || outputs > 2) throw new IllegalArgumentException("outputs must be 1 or 2, got " + outputs);
+		this.outputs = outputs;
 		if (levels < 2 || levels > 6) throw new IllegalArgumentException("levels must be 2..6, got " + levels);
 		this.inChannels = inChannels;
 		this.base = base;
 		this.levels = levels;
 		for (int i = 0; i < levels; i++) down.add(addChildBlock("down" + i, doubleConv(width(i))));
 		for (int i = 0; i < levels - 1; i++) up.add(addChildBlock("up" + i, doubleConv(width(i))));
-		head = addChildBlock("head", Conv2d.builder().setKernelShape(new Shape(1, 1)).setFilters(1).build());
+		head = addChildBlock("head", Conv2d.builder().setKernelShape(new Shape(1, 1)).setFilters(outputs).build());
 	}
 
 	public int multiple() {
@@ -51,6 +61,10 @@ public final class UNet extends AbstractBlock {
 
 	public int inChannels() {
 		return inChannels;
+	}
+
+	public int outputs() {
+		return outputs;
 	}
 
 	private int width(int level) {
@@ -88,7 +102,7 @@ public final class UNet extends AbstractBlock {
 	@Override
 	public Shape[] getOutputShapes(Shape[] inputShapes) {
 		Shape s = inputShapes[0];
-		return new Shape[] {new Shape(s.get(0), 1, s.get(2), s.get(3))};
+		return new Shape[] {new Shape(s.get(0), outputs, s.get(2), s.get(3))};
 	}
 
 	@Override

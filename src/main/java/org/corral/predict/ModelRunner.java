@@ -101,16 +101,31 @@ public final class ModelRunner implements AutoCloseable {
 	}
 
 	/** As {@link #probability(PlanarImage, double, BooleanSupplier)}, averaged over {@code flips} mirrored passes (1, 2 or 4). */
-	public synchronized float[] probability(PlanarImage raw, double scale, BooleanSupplier cancelled, int flips) {
+	public float[] probability(PlanarImage raw, double scale, BooleanSupplier cancelled, int flips) {
+		return maps(raw, scale, cancelled, flips)[0];
+	}
+
+	/** Every output map at the image's own size: [0] object probability, [1] the centre map when the model has one. */
+	public synchronized float[][] maps(PlanarImage raw, double scale, BooleanSupplier cancelled, int flips) {
 		predictor.optFlips(flips);
 		if (raw.nChannels() != header.inChannels)
 			throw new CorralException("The model was learned on " + header.inChannels + "-channel images; this image has " + raw.nChannels());
-		if (constant(raw)) return new float[raw.width * raw.height]; // no contrast, no objects
+		int no = Math.max(1, header.outputs);
+		if (constant(raw)) return new float[no][raw.width * raw.height]; // no contrast, no objects
 		PlanarImage norm = Normalise.percentiles(raw, header.normLow, header.normHigh);
-		if (scale == 1) return predictor.predict(norm, cancelled);
+		if (scale == 1) return finite(predictor.predictMaps(norm, cancelled));
 		int sw = Math.max(1, (int) Math.round(raw.width * scale)), sh = Math.max(1, (int) Math.round(raw.height * scale));
-		float[] p = predictor.predict(Resample.bilinear(norm, sw, sh), cancelled);
-		return Resample.bilinear(p, sw, sh, raw.width, raw.height);
+		float[][] p = finite(predictor.predictMaps(Resample.bilinear(norm, sw, sh), cancelled));
+		for (int o = 0; o < p.length; o++) p[o] = Resample.bilinear(p[o], sw, sh, raw.width, raw.height);
+		return p;
+	}
+
+	/** A map that is not a number would give silently empty masks: refused with a message instead. */
+	static float[][] finite(float[][] maps) {
+		for (float[] m : maps)
+			for (float v : m)
+				if (Float.isNaN(v)) throw new CorralException("The model gives no numbers on this image (its parameters are not finite): learn it again, wider or with another seed");
+		return maps;
 	}
 
 	/** True when every channel holds a single finite value (NaN and infinities ignored). */

@@ -54,10 +54,16 @@ public final class TiledPredictor {
 
 	/** Probabilities in [0, 1], raster order. {@code im} must already be normalised. */
 	public float[] predict(PlanarImage im, BooleanSupplier cancelled) {
+		return predictMaps(im, cancelled)[0];
+	}
+
+	/** Every output map of the network (object probability, and the centre map when it has one), in [0, 1]. */
+	public float[][] predictMaps(PlanarImage im, BooleanSupplier cancelled) {
 		if (im.nChannels() != net.inChannels())
 			throw new CorralException("The model expects " + net.inChannels() + " channel(s), the image has " + im.nChannels());
 		int w = im.width, h = im.height;
-		float[] out = new float[w * h];
+		int no = net.outputs();
+		float[][] out = new float[no][w * h];
 		int m = net.multiple();
 		boolean grad = JniUtils.isGradMode();
 		JniUtils.setGradMode(false);
@@ -81,7 +87,7 @@ public final class TiledPredictor {
 							for (int x = 0; x < iw; x++) in[base + y * iw + x] = src[sy * w + PlanarImage.mirror(ox + x, w)];
 						}
 					}
-					float[] p = new float[iw * ih];
+					float[] p = new float[no * iw * ih];
 					for (int f = 0; f < flips; f++)
 						try (NDManager sub = manager.newSubManager()) {
 							// test-time flips: predict the mirrored tile, mirror back, average
@@ -95,8 +101,9 @@ public final class TiledPredictor {
 						}
 					{
 						int dx = tx - ox, dy = ty - oy;
-						for (int y = 0; y < ch; y++)
-							System.arraycopy(p, (y + dy) * iw + dx, out, (ty + y) * w + tx, cw);
+						for (int o = 0; o < no; o++)
+							for (int y = 0; y < ch; y++)
+								System.arraycopy(p, o * iw * ih + (y + dy) * iw + dx, out[o], (ty + y) * w + tx, cw);
 					}
 				}
 		} finally {

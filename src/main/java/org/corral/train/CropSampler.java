@@ -20,7 +20,7 @@ final class CropSampler {
 	record Prepared(String name, PlanarImage image, PlanarImage guide, Supervision sup, float[][] bounds) {}
 
 	/** One crop, ready for the batch arrays. */
-	record Crop(float[][] channels, float[] background, float[] pairH, float[] pairV, List<Constraint> constraints) {}
+	record Crop(float[][] channels, float[] background, float[] pairH, float[] pairV, List<Constraint> constraints, float[] centre, float[] centreWeight) {}
 
 	private final List<Prepared> images;
 	private final int[] boxImage, boxIndex;
@@ -98,7 +98,23 @@ final class CropSampler {
 				if (x + 1 < s && (inBox[i] != 0 || inBox[i + 1] != 0) && dist2(guide, i, i + 1) < tol2) ph[y * (s - 1) + x] = 1;
 				if (y + 1 < s && (inBox[i] != 0 || inBox[i + s] != 0) && dist2(guide, i, i + s) < tol2) pv[y * s + x] = 1;
 			}
-		return new Crop(ch, bg, ph, pv, cons);
+		// the centre map: every box that reaches into the crop, in the crop's (transformed) frame
+		float[] cen = new float[s * s], cw = new float[s * s];
+		for (int i = 0; i < cw.length; i++) cw[i] = bg[i];
+		for (Box b : p.sup().boxes) {
+			if (b.x1() <= ox || b.y1() <= oy || b.x() >= ox + s || b.y() >= oy + s) continue;
+			Box t = transform(d, new Box(b.index(), b.x() - ox, b.y() - oy, b.width(), b.height()), s);
+			double cx = t.x() + t.width() / 2.0, cy = t.y() + t.height() / 2.0, rx = t.width() / 2.0, ry = t.height() / 2.0;
+			for (int y = Math.max(0, t.y()); y < Math.min(s, t.y1()); y++)
+				for (int x = Math.max(0, t.x()); x < Math.min(s, t.x1()); x++) {
+					double dx = (x + 0.5 - cx) / rx, dy = (y + 0.5 - cy) / ry;
+					float v = (float) Math.max(0, 1 - Math.sqrt(dx * dx + dy * dy));
+					int i = y * s + x;
+					cen[i] = Math.max(cen[i], v);
+					cw[i] = 1;
+				}
+		}
+		return new Crop(ch, bg, ph, pv, cons, cen, cw);
 	}
 
 	private static double dist2(float[][] g, int i, int j) {

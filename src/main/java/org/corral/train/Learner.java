@@ -94,7 +94,8 @@ public final class Learner {
 		if (from != null && (from.header().inChannels != nc || from.header().baseChannels != s.base || from.header().levels != s.levels))
 			throw new CorralException("Cannot continue from the model: it was learned on " + from.header().inChannels + "-channel images with width "
 				+ from.header().baseChannels + " and " + from.header().levels + " levels; these images have " + nc + " channel(s)");
-		UNet net = new UNet(nc, s.base, s.levels);
+		int outputs = from != null ? Math.max(1, from.header().outputs) : s.centres ? 2 : 1;
+		UNet net = new UNet(nc, s.base, s.levels, outputs);
 		int[] total = {s.steps};
 		boolean shortened = false;
 		Tracker lr = step -> (float) (s.learningRate * lrFactor(step, total[0]));
@@ -121,6 +122,7 @@ public final class Learner {
 				if (progress.cancelled()) throw new CancellationException("learning cancelled at step " + step);
 				double t = tAt(step, total[0]);
 				float[] x = new float[b * nc * c * c], bg = new float[b * c * c], ph = new float[b * c * (c - 1)], pv = new float[b * (c - 1) * c];
+				float[] cen = new float[b * c * c], cw = new float[b * c * c];
 				List<List<org.corral.supervision.Constraint>> cons = new ArrayList<>();
 				for (int i = 0; i < b; i++) {
 					CropSampler.Crop cr = sampler.next();
@@ -128,15 +130,23 @@ public final class Learner {
 					System.arraycopy(cr.background(), 0, bg, i * c * c, c * c);
 					System.arraycopy(cr.pairH(), 0, ph, i * c * (c - 1), c * (c - 1));
 					System.arraycopy(cr.pairV(), 0, pv, i * (c - 1) * c, (c - 1) * c);
+					System.arraycopy(cr.centre(), 0, cen, i * c * c, c * c);
+					System.arraycopy(cr.centreWeight(), 0, cw, i * c * c, c * c);
 					cons.add(cr.constraints());
 				}
 				try (NDManager sm = trainer.getManager().newSubManager(); GradientCollector gc = trainer.newGradientCollector()) {
 					BoxLoss.Targets tg = new BoxLoss.Targets(sm, b, c, c, bg, ph, pv, cons, s.weights);
+					if (outputs == 2) tg.optCentre(sm, b, c, c, cen, cw);
 					NDArray in = sm.create(x, new Shape(b, nc, c, c));
 					NDArray logits = trainer.forward(new NDList(in)).singletonOrThrow();
 					BoxLoss.Parts p = BoxLoss.compute(logits, tg, t, s.weights);
+					float loss = p.total().getFloat();
+					// never hand out a broken model: a loss that is not a number ends learning with a message
+					if (!Float.isFinite(loss))
+						throw new CorralException("Learning diverged at step " + step + " (the loss is not a number); nothing was written. Try a wider network (--width "
+							+ Math.max(16, 2 * s.base) + "), a smaller learning rate (--lr) or another seed");
 					gc.backward(p.total());
-					acc[0] += p.total().getFloat();
+					acc[0] += loss;
 					acc[1] += p.background().getFloat();
 					acc[2] += p.constraints().getFloat();
 					acc[3] += p.pairwise().getFloat();
@@ -172,6 +182,7 @@ public final class Learner {
 			h.inChannels = nc;
 			h.baseChannels = s.base;
 			h.levels = s.levels;
+			h.outputs = outputs;
 			h.normLow = Normalise.LOW;
 			h.normHigh = Normalise.HIGH;
 			h.objectSize = from != null ? from.header().objectSize : median(sides);

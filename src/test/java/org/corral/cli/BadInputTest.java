@@ -67,7 +67,7 @@ class BadInputTest {
 		demoBoxes = ReferenceData.demo().resolve("boxes.csv").toAbsolutePath();
 		model = dir.resolve("small.zip");
 		assertEquals(0, Main.run(new String[] {"learn", "--images", demoImages.toString(), "--boxes", demoBoxes.toString(), "--model", model.toString(),
-			"--steps", "3", "--width", "8", "--minutes", "0"}));
+			"--steps", "3", "--width", "16", "--minutes", "0"}));
 	}
 
 	static Path folderWith(Path work, String name, ImagePlus imp) {
@@ -92,7 +92,7 @@ class BadInputTest {
 
 	static String[] learn(Path images, Path boxes, Path out) {
 		return new String[] {"learn", "--images", images.toString(), "--boxes", boxes.toString(), "--model", out.resolve("m.zip").toString(), "--steps", "2",
-			"--width", "8", "--minutes", "0"};
+			"--width", "16", "--minutes", "0"};
 	}
 
 	static String[] maskImage(Path images, Path m, Path out) {

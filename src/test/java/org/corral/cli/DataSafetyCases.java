@@ -87,13 +87,13 @@ final class DataSafetyCases {
 			Path in = copyDemo(demoImages, demoBoxes, w);
 			before.put(w.toString(), digest(in));
 			return new String[] {"learn", "--images", in.toString(), "--boxes", in.resolve("boxes.csv").toString(), "--model", in.resolve("seedcoat-01.tif").toString(),
-				"--steps", "2", "--width", "8", "--minutes", "0"};
+				"--steps", "2", "--width", "16", "--minutes", "0"};
 		}, "is also an input", unchanged));
 		c.add(new Case("learn with the model file equal to the box file", w -> {
 			Path in = copyDemo(demoImages, demoBoxes, w);
 			before.put(w.toString(), digest(in));
 			return new String[] {"learn", "--images", in.toString(), "--boxes", in.resolve("boxes.csv").toString(), "--model", in.resolve("boxes.csv").toString(),
-				"--steps", "2", "--width", "8", "--minutes", "0"};
+				"--steps", "2", "--width", "16", "--minutes", "0"};
 		}, "is also an input", unchanged));
 		c.add(new Case("learn with the model file equal to an image's ROI set", w -> {
 			Path in = copyDemo(demoImages, demoBoxes, w);
@@ -101,7 +101,7 @@ final class DataSafetyCases {
 			RoiSets.writeZip(in.resolve("seedcoat-01.zip"), rects);
 			Files.delete(in.resolve("boxes.csv"));
 			before.put(w.toString(), digest(in));
-			return new String[] {"learn", "--images", in.toString(), "--model", in.resolve("seedcoat-01.zip").toString(), "--steps", "2", "--width", "8", "--minutes", "0"};
+			return new String[] {"learn", "--images", in.toString(), "--model", in.resolve("seedcoat-01.zip").toString(), "--steps", "2", "--width", "16", "--minutes", "0"};
 		}, "is also an input", unchanged));
 		c.add(new Case("score with the table written over a reference image", w -> {
 			Path in = Files.createDirectories(w.resolve("in"));
@@ -126,6 +126,10 @@ final class DataSafetyCases {
 			assertTrue(Files.exists(w.resolve("out/seedcoat-01.labels.tif")), "masked, not skipped as done");
 			assertEquals(before.get(w.toString()).get("seedcoat-01.tif"), digest(w.resolve("out")).get("seedcoat-01.tif"), "the user's file is untouched");
 		}));
+		// learning that diverges (a width-8 network on the demo boxes: its loss is not a number by step 2) writes nothing
+		c.add(new Case("learning that diverges stops with a message and writes no model", w -> new String[] {"learn", "--images", demoImages.toString(), "--boxes",
+			demoBoxes.toString(), "--model", w.resolve("m.zip").toString(), "--steps", "5", "--width", "8", "--minutes", "0"}, "Learning diverged at step",
+			w -> assertFalse(Files.exists(w.resolve("m.zip")))));
 		// option values
 		c.add(new Case("a typo in a list option", w -> new String[] {"benchmark", "--data", "x", "--grow", "2,x"}, "--grow must be a comma-separated list of whole numbers", null));
 		c.add(new Case("a typo in a whole-number option", w -> new String[] {"learn", "--images", "x", "--model", "y", "--steps", "4OO"},

@@ -34,10 +34,18 @@ class CrossCollectionTest {
 
 	record Pair(String learnOn, String masked) {}
 
-	static final List<Pair> PAIRS = List.of(new Pair("bbbc039-u2os-nuclei", "bbbc039-u2os-nuclei"),
-		new Pair("bbbc038-dsb2018-histology", "bbbc038-dsb2018-histology"), new Pair("sbsst265-fluorescence-nuclei", "sbsst265-fluorescence-nuclei"),
-		new Pair("bbbc038-dsb2018-histology", "bbbc038-dsb2018-histology-other-look"), new Pair("bbbc039-u2os-nuclei", "sbsst265-fluorescence-nuclei"),
-		new Pair("sbsst265-fluorescence-nuclei", "bbbc039-u2os-nuclei"));
+	/** Within a set (learn on its first 5 images, mask the others) and across sets of another look. */
+	static final List<Pair> PAIRS = List.of(new Pair("bbbc038-dsb2018-histology", "bbbc038-dsb2018-histology"),
+		new Pair("bbbc038-dsb2018-histology", "bbbc038-dsb2018-histology-other-look"), new Pair("sbsst265-fluorescence-nuclei", "sbsst265-fluorescence-nuclei"),
+		new Pair("sbsst265-fluorescence-nuclei", "bbbc039-u2os-nuclei"), new Pair("bbbc039-u2os-nuclei", "sbsst265-fluorescence-nuclei"));
+
+	/** One learned model per learned-on set, shared by its pairs (learning is the slow part). */
+	static final Map<String, Learner.Result> MODELS = new java.util.HashMap<>();
+
+	@org.junit.jupiter.api.AfterAll
+	static void closeModels() {
+		MODELS.values().forEach(Learner.Result::close);
+	}
 
 	@TestFactory
 	Stream<DynamicTest> adaptedMasksAreNeverBelowTheInscribedEllipse() {
@@ -47,14 +55,15 @@ class CrossCollectionTest {
 	static void check(Pair p) {
 		Path a = ReferenceData.set(p.learnOn()), b = ReferenceData.set(p.masked());
 		CrossBenchmark.Split sp = CrossBenchmark.split(a, b, 5);
-		Map<Path, List<Box>> learn = sp.learn();
-		if (!p.learnOn().equals(p.masked())) learn = first(learn, 5); // the same learned-on images as within the set
+		// the same learned-on images (the first 5 by name) within the set and across sets
+		Map<Path, List<Box>> learn = first(sp.learn(), 5);
 		LearnSettings s = new LearnSettings();
 		s.steps = STEPS;
 		s.minutes = 0;
 		Scores.Tally adapted = new Scores.Tally(), ellipse = new Scores.Tally();
-		try (Learner.Result base = new Learner(s).learn(Jobs.trainingImages(learn), Progress.silent());
-			ModelRunner baseRunner = new ModelRunner(base.header(), base.net(), base.manager())) {
+		Learner.Result base = MODELS.computeIfAbsent(p.learnOn(), k -> new Learner(s).learn(Jobs.trainingImages(learn), Progress.silent()));
+		{
+			ModelRunner baseRunner = new ModelRunner(base.header(), base.net(), base.manager());
 			List<TrainingImage> own = Jobs.trainingImages(sp.mask());
 			int n = own.stream().mapToInt(t -> t.boxes().size()).sum();
 			try (Learner.Result r = Adaptation.adapt(baseRunner, own, Adaptation.settings(s, baseRunner, n, 0), Progress.silent());

@@ -65,7 +65,7 @@ class ReferenceSetTest {
 			PlanarImage im = ImageFiles.read(p);
 			int[] ref = ImageFiles.readLabels(set.resolve("labels").resolve(p.getFileName()), null);
 			float[] prob = runner.probability(im, 1, null, ModelRunner.BOX_FLIPS);
-			model.add(Scores.compare(BoxMasks.make(prob, im.width, im.height, all.get(p), 0.5).labels(), ref));
+			model.add(Scores.compare(BoxMasks.make(prob, im.width, im.height, all.get(p), BoxMasks.Options.DEFAULTS).labels(), ref));
 			if (baseline) box.add(Scores.compare(Baselines.boxItself(im, all.get(p)), ref));
 		}
 		return model;

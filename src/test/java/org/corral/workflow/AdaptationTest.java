@@ -1,0 +1,58 @@
+package org.corral.workflow;
+
+import static org.junit.jupiter.api.Assertions.assertArrayEquals;
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.util.List;
+
+import org.corral.ReferenceData;
+import org.corral.cli.Main;
+import org.corral.io.ImageFiles;
+import org.corral.model.ModelFile;
+import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.io.TempDir;
+
+/** mask-boxes learns from the boxes it is asked to mask: reproducibly, recorded, and optional. */
+class AdaptationTest {
+	@TempDir
+	Path dir;
+
+	@Test
+	void stepsGrowWithTheBoxesWithinBounds() {
+		assertEquals(Adaptation.MIN_STEPS, Adaptation.steps(3));
+		assertEquals(100, Adaptation.steps(100));
+		assertEquals(Adaptation.MAX_STEPS, Adaptation.steps(5000));
+	}
+
+	@Test
+	void maskBoxesAdaptsReproduciblyRecordsTheModelAndCanBeSwitchedOff() throws Exception {
+		Path demo = ReferenceData.demo().toAbsolutePath(), images = demo.resolve("images"), boxes = demo.resolve("boxes.csv");
+		Path model = dir.resolve("base.zip");
+		assertEquals(0, Main.run(new String[] {"learn", "--images", images.toString(), "--boxes", boxes.toString(), "--model", model.toString(), "--steps", "20",
+			"--width", "16", "--minutes", "0"}));
+		int[][] runs = new int[3][];
+		for (int i = 0; i < 3; i++) {
+			Path out = dir.resolve("out" + i);
+			List<String> argv = new java.util.ArrayList<>(List.of("mask-boxes", "--images", images.toString(), "--boxes", boxes.toString(), "--model", model.toString(),
+				"--out", out.toString(), "--adapt-steps", "15"));
+			if (i == 0) argv.addAll(List.of("--save-adapted", dir.resolve("adapted.zip").toString()));
+			if (i == 2) argv.add("--no-adapt");
+			assertEquals(0, Main.run(argv.toArray(String[]::new)));
+			runs[i] = ImageFiles.readLabels(out.resolve("seedcoat-02.labels.tif"), null);
+			String record = Files.readString(out.resolve(OutputNames.RUN_RECORD));
+			assertTrue(record.contains("\"model\": \"" + model.toAbsolutePath()), record);
+			assertTrue(record.contains("\"adapt\": " + (i < 2)), record);
+			if (i < 2) assertTrue(record.contains("\"adaptSteps\": 15"), record);
+		}
+		assertArrayEquals(runs[0], runs[1], "same boxes, model, seed and steps: the same label image");
+		assertFalse(java.util.Arrays.equals(runs[0], runs[2]), "adapting changed the masks");
+		try (var m = org.corral.predict.ModelRunner.open(dir.resolve("adapted.zip"))) {
+			assertEquals(ModelFile.readHeader(model).created, m.header().counts.get("continuedFrom"), "the adapted model names its start");
+			assertEquals(ModelFile.readHeader(model).objectSize, m.header().objectSize, 1e-9);
+		}
+	}
+}
