@@ -141,10 +141,7 @@ public final class Learner {
 					NDArray logits = trainer.forward(new NDList(in)).singletonOrThrow();
 					BoxLoss.Parts p = BoxLoss.compute(logits, tg, t, s.weights);
 					float loss = p.total().getFloat();
-					// never hand out a broken model: a loss that is not a number ends learning with a message
-					if (!Float.isFinite(loss))
-						throw new CorralException("Learning diverged at step " + step + " (the loss is not a number); nothing was written. Try a wider network (--width "
-							+ Math.max(16, 2 * s.base) + "), a smaller learning rate (--lr) or another seed");
+					requireFinite(loss, step, s.base);
 					gc.backward(p.total());
 					acc[0] += loss;
 					acc[1] += p.background().getFloat();
@@ -217,6 +214,13 @@ public final class Learner {
 		} finally {
 			if (!done) model.close();
 		}
+	}
+
+	/** Never hand out a broken model: a loss that is not a number ends learning with a message. */
+	public static void requireFinite(float loss, int step, int width) {
+		if (!Float.isFinite(loss))
+			throw new CorralException("Learning diverged at step " + step + " (the loss is not a number); nothing was written. Try a wider network (--width "
+				+ Math.max(16, 2 * width) + "), a smaller learning rate (--lr) or another seed");
 	}
 
 	/**
