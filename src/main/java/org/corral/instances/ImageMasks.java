@@ -51,7 +51,7 @@ public final class ImageMasks {
 	}
 
 	/** Seeds on the centre map: a peak must rise this much (on its 0..1 scale) above the saddle to its neighbour. */
-	public static double CENTRE_PROMINENCE = Double.parseDouble(System.getProperty("corral.cprom", "0.1"));
+	public static final double CENTRE_PROMINENCE = 0.1;
 
 	/**
 	 * @param centre the network's centre map, or null: with it, objects are split along the valleys of
@@ -75,18 +75,8 @@ public final class ImageMasks {
 				FloatProcessor cm = new FloatProcessor(w, h, centre.clone());
 				new GaussianBlur().blurGaussian(cm, 1.0, 1.0, 0.01);
 				seg = new MaximumFinder().findMaxima(cm, CENTRE_PROMINENCE, ImageProcessor.NO_THRESHOLD, MaximumFinder.SEGMENTED, false, false);
-			} else if (SEEDS.startsWith("blob")) { // landscape: the probability smoothed at the object scale, times the distance
-				double f = Integer.parseInt(SEEDS.replaceAll("[^0-9]", "")) / 100.0;
-				FloatProcessor sp = new FloatProcessor(w, h, prob.clone());
-				new GaussianBlur().blurGaussian(sp, f * size, f * size, 0.01);
-				FloatProcessor land = new FloatProcessor(w, h);
-				for (int i = 0; i < w * h; i++) land.setf(i, (float) (sp.getf(i) * Math.min(edm.getf(i), size / 2)));
-				seg = new MaximumFinder().findMaxima(land, Math.max(MIN_PROMINENCE, prominence * size), ImageProcessor.NO_THRESHOLD, MaximumFinder.SEGMENTED, false, true);
 			} else {
-				if (SEEDS.startsWith("edm")) {
-					double f = Integer.parseInt(SEEDS.replaceAll("[^0-9]", "")) / 100.0;
-					new GaussianBlur().blurGaussian(edm, f * size, f * size, 0.01);
-				} else new GaussianBlur().blurGaussian(edm, 1.0, 1.0, 0.01); // tames pixel-level ridges
+				new GaussianBlur().blurGaussian(edm, 1.0, 1.0, 0.01); // tames pixel-level ridges
 				seg = new MaximumFinder().findMaxima(edm, Math.max(MIN_PROMINENCE, prominence * size), ImageProcessor.NO_THRESHOLD, MaximumFinder.SEGMENTED, false, true);
 			}
 			boolean[] cells = new boolean[w * h];
@@ -94,7 +84,6 @@ public final class ImageMasks {
 			lab = Components.label(cells, w, h, cnt);
 			reclaimLines(lab, mask, w, h);
 		} else lab = Components.label(mask, w, h, cnt);
-		if (EXTENT < threshold) lab = grow(lab, prob, w, h, EXTENT);
 		// drop specks: far below the area of a typical object
 		double minArea = Math.max(4, 0.08 * Math.PI / 4 * size * size);
 		long[] area = Components.sizes(lab, cnt[0]);
@@ -103,38 +92,6 @@ public final class ImageMasks {
 		for (int l = 1; l <= cnt[0]; l++) remap[l] = area[l] >= minArea ? ++n : 0;
 		for (int i = 0; i < lab.length; i++) lab[i] = remap[lab[i]];
 		return new Result(lab, n, describe(lab, n, prob, w, h, size));
-	}
-
-	public static String SEEDS = System.getProperty("corral.seeds", "plain");
-	public static double EXTENT = Double.parseDouble(System.getProperty("corral.extent", "1"));
-
-	/**
-	 * Grows the objects found at the core threshold into the pixels at or above {@code extent}, the
-	 * most probable pixels first (a seeded watershed on the probability, restricted to that extent),
-	 * so that the paler rim of each object joins it; extent pixels no object reaches stay background.
-	 */
-	static int[] grow(int[] lab, float[] prob, int w, int h, double extent) {
-		int[] out = lab.clone();
-		boolean[] allowed = new boolean[w * h];
-		for (int i = 0; i < allowed.length; i++) allowed[i] = prob[i] >= extent;
-		Components.fillHoles(allowed, w, h);
-		java.util.PriorityQueue<long[]> q = new java.util.PriorityQueue<>((a, b) -> Long.compare(b[0], a[0]));
-		for (int i = 0; i < out.length; i++) if (out[i] > 0) push(q, out, allowed, prob, w, h, i);
-		while (!q.isEmpty()) {
-			long[] e = q.poll();
-			int i = (int) e[1];
-			if (out[i] != 0) continue;
-			out[i] = (int) e[2];
-			push(q, out, allowed, prob, w, h, i);
-		}
-		return out;
-	}
-
-	private static void push(java.util.PriorityQueue<long[]> q, int[] out, boolean[] allowed, float[] prob, int w, int h, int i) {
-		int x = i % w, y = i / w;
-		int[] nb = {x > 0 ? i - 1 : -1, x < w - 1 ? i + 1 : -1, y > 0 ? i - w : -1, y < h - 1 ? i + w : -1};
-		for (int j : nb)
-			if (j >= 0 && out[j] == 0 && allowed[j]) q.add(new long[] {(long) (prob[j] * 1e6), j, out[i]});
 	}
 
 	/** Watershed lines are one pixel wide: give each line pixel of the mask to a neighbouring object. */

@@ -2,7 +2,6 @@ package org.corral.workflow;
 
 import java.io.IOException;
 import java.nio.file.Files;
-import java.nio.file.LinkOption;
 import java.nio.file.Path;
 import java.util.Collection;
 import java.util.List;
@@ -85,13 +84,12 @@ public final class OutputNames {
 		}
 	}
 
+	/** The same file or folder, whatever the spelling (links resolved when both exist). */
 	static boolean same(Path a, Path b) {
 		Path x = a.toAbsolutePath().normalize(), y = b.toAbsolutePath().normalize();
 		if (x.equals(y)) return true;
 		try {
-			if (Files.exists(x) && Files.exists(y)) return Files.isSameFile(x, y);
-			// a folder that does not exist yet may still resolve to an existing one through links
-			return x.toRealPath(LinkOption.NOFOLLOW_LINKS).equals(y);
+			return Files.exists(x) && Files.exists(y) && Files.isSameFile(x, y);
 		} catch (IOException e) {
 			return false;
 		}
