@@ -53,8 +53,4 @@ public record Box(int index, int x, int y, int width, int height, int slice, Str
 	public Box grown(int by) {
 		return new Box(index, x - by, y - by, width + 2 * by, height + 2 * by, slice, name);
 	}
-
-	public boolean contains(int px, int py) {
-		return px >= x && px < x1() && py >= y && py < y1();
-	}
 }

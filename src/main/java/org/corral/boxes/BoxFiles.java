@@ -101,13 +101,6 @@ public final class BoxFiles {
 		return boxes;
 	}
 
-	/** Rectangle ROIs become boxes, in order; an area ROI of another shape is refused by name. */
-	public static List<Box> fromRois(Roi[] rois, String where) {
-		List<Box> boxes = new ArrayList<>();
-		for (Roi r : rois) addRoi(boxes, r, where);
-		return boxes;
-	}
-
 	private static void addRoi(List<Box> boxes, Roi roi, String where) {
 		if (roi == null) throw new CorralException("Unreadable ROI in " + where);
 		if (roi.getType() != Roi.RECTANGLE)
