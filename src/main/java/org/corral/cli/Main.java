@@ -179,9 +179,25 @@ public final class Main {
 				return 0;
 			}
 			case "benchmark" -> {
-				if (help) return print("corral benchmark --data DIR [--data2 DIR] [--grow 0,2,4,8] [learn options]\n  each DIR is a reference set (images/, labels/, boxes.csv): learn on the first 5 images, mask the other 5;\n  prints the figures of Corral, the box itself and Otsu in the box; with boxes (tight) and without (whole image).\n  --grow LIST  instead: per-object Dice with every box enlarged by each amount, without and with --margin\n");
-				Args a = new Args(job, argv, 1, Set.of("partial", "all-boxed"));
+				if (help) return print("corral benchmark --data DIR [--data2 DIR] [--grow 0,2,4,8] [learn options]\n  each DIR is a reference set (images/, labels/, boxes.csv): learn on the first 5 images, mask the other 5;\n  prints the figures of Corral, the box itself and Otsu in the box; with boxes (tight) and without (whole image).\n  --grow LIST  instead: per-object Dice with every box enlarged by each amount, without and with --margin\n"
+					+ "corral benchmark --learn A --mask B[,C...] [--cache DIR]\n  the cross-collection protocol (README)\n"
+					+ "corral benchmark --speed [--images DIR [--boxes FILE.csv]] [--model FILE] [--steps N]\n  where the time goes: learning s/step (" + SPEED_STEPS
+					+ " steps unless --model), then each stage of masking the folder (default test-images/) in MP/s,\n  the network's GFLOP/s against a matrix product measured in the same run, end-to-end rates and peak memory\n");
+				Args a = new Args(job, argv, 1, Set.of("partial", "all-boxed", "speed"));
 				threads(a);
+				if (a.has("speed")) { // where the time goes, stage by stage
+					Path images = a.path("images", false);
+					Path boxes = a.path("boxes", false);
+					Path model = a.path("model", false);
+					LearnSettings s = settings(a, SPEED_STEPS);
+					a.checkAllUsed();
+					if (images == null) {
+						images = Path.of("test-images", "images");
+						if (boxes == null) boxes = Path.of("test-images", "boxes.csv");
+					}
+					System.out.print(org.corral.workflow.SpeedBenchmark.run(images, boxes, model, s, System.out::println));
+					return 0;
+				}
 				if (a.has("learn")) { // the cross-collection protocol: learn on A, mask B
 					Path learnSet = a.path("learn", true);
 					List<Path> maskSets = new java.util.ArrayList<>();
@@ -253,6 +269,9 @@ public final class Main {
 		System.out.println(rep.summary());
 		return rep.failed().isEmpty() ? 0 : 3;
 	}
+
+	/** Steps learned by {@code benchmark --speed} without a model: enough for a steady step time. */
+	static final int SPEED_STEPS = 30;
 
 	static LearnSettings settings(Args a) {
 		return settings(a, new LearnSettings().steps);

@@ -67,6 +67,22 @@ public final class UNet extends AbstractBlock {
 		return outputs;
 	}
 
+	/**
+	 * Floating-point operations of one forward pass per input pixel (multiply and add counted apart):
+	 * each 3x3 convolution costs 2 * 9 * in * out at its level, whose pixels are 4^level fewer; the
+	 * 1x1 head 2 * base * outputs. Pooling, upsampling, batch normalisation and ReLU are not counted.
+	 */
+	public long flopsPerPixel() {
+		double f = 2.0 * width(0) * outputs;
+		for (int i = 0; i < levels; i++) {
+			long in = i == 0 ? inChannels : width(i - 1), c = width(i);
+			double level = 2 * 9 * (in * c + c * c);
+			if (i < levels - 1) level += 2 * 9 * ((c + width(i + 1)) * c + c * c);
+			f += level / Math.pow(4, i);
+		}
+		return Math.round(f);
+	}
+
 	private int width(int level) {
 		return base << level;
 	}

@@ -1,0 +1,34 @@
+package org.corral.workflow;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import java.nio.file.Path;
+import java.util.regex.Matcher;
+import java.util.regex.Pattern;
+
+import org.corral.train.LearnSettings;
+import org.junit.jupiter.api.Test;
+
+/** The speed report prints every stage with a rate; it is a command, so only its form is checked, never a speed. */
+class SpeedBenchmarkTest {
+	@Test
+	void printsEveryStageWithAFiniteRate() {
+		LearnSettings s = new LearnSettings();
+		s.steps = 4;
+		String out = SpeedBenchmark.run(Path.of("test-images", "images"), Path.of("test-images", "boxes.csv"), null, s, l -> {});
+		for (String stage : new String[] {"read", "normalise", "network, 1 pass", "network, 4 flips (box masks)", "box masks, fitted", "instance stage (whole image)",
+			"  of which distance map", "  of which watershed", "outlines", "writing"}) {
+			Matcher m = Pattern.compile("(?m)^" + Pattern.quote(stage) + " +([0-9.]+) +([0-9.]+)$").matcher(out);
+			assertTrue(m.find(), "row '" + stage + "' in\n" + out);
+			assertTrue(Double.parseDouble(m.group(2)) > 0, stage + " has a rate");
+		}
+		assertTrue(out.contains("80,960 FLOP per pixel"), out);
+		assertTrue(Pattern.compile("learning: [0-9.]+ s/step \\(batch 8 of 128x128").matcher(out).find(), out);
+		assertTrue(Pattern.compile("network: [0-9.]+ GFLOP/s = [0-9]+ % of the matrix product").matcher(out).find(), out);
+		assertTrue(Pattern.compile("end to end: mask-image [0-9.]+ MP/s").matcher(out).find(), out);
+		Matcher mp = Pattern.compile("(\\d+) image\\(s\\), ([0-9.]+) MP").matcher(out);
+		assertTrue(mp.find(), out);
+		assertEquals(4, Integer.parseInt(mp.group(1)), "the demo folder's boxed images");
+	}
+}
