@@ -1,11 +1,8 @@
 package org.corral.predict;
 
 import ai.djl.ndarray.NDArray;
-import ai.djl.ndarray.NDList;
 import ai.djl.ndarray.NDManager;
 import ai.djl.ndarray.types.Shape;
-import ai.djl.pytorch.jni.JniUtils;
-import ai.djl.training.ParameterStore;
 
 import java.util.function.BooleanSupplier;
 
@@ -24,6 +21,8 @@ public final class TiledPredictor {
 	private final NDManager manager;
 	private final int tile, overlap;
 	private int flips = 1;
+	/** The network with batch normalisation folded in, made at the first prediction (parameters are final by then). */
+	private FoldedNetwork folded;
 
 	public TiledPredictor(UNet net, NDManager manager, int tile, int overlap) {
 		if (tile < 16 || overlap < 0) throw new IllegalArgumentException("tile must be >= 16 and overlap >= 0");
@@ -57,7 +56,7 @@ public final class TiledPredictor {
 		return predictMaps(im, cancelled)[0];
 	}
 
-	/** Every output map of the network (object probability, and the centre map when it has one), in [0, 1]. */
+	/** Every output map of the network (object probability, and the instance map when it has one), in [0, 1]. */
 	public float[][] predictMaps(PlanarImage im, BooleanSupplier cancelled) {
 		if (im.nChannels() != net.inChannels())
 			throw new CorralException("The model expects " + net.inChannels() + " channel(s), the image has " + im.nChannels());
@@ -65,12 +64,11 @@ public final class TiledPredictor {
 		int no = net.outputs();
 		float[][] out = new float[no][w * h];
 		int m = net.multiple();
-		boolean grad = JniUtils.isGradMode();
-		JniUtils.setGradMode(false);
+		if (folded == null) folded = new FoldedNetwork(net, manager);
 		// as few tiles as the size limit allows, all of about the same size: no tile is mostly padding
 		int nx = (w + tile - 1) / tile, ny = (h + tile - 1) / tile;
 		int tw = (w + nx - 1) / nx, th = (h + ny - 1) / ny;
-		try {
+		{ // the folded arrays do not require gradients, so no graph is recorded
 			for (int ty = 0; ty < h; ty += th)
 				for (int tx = 0; tx < w; tx += tw) {
 					if (cancelled != null && cancelled.getAsBoolean()) throw new java.util.concurrent.CancellationException("prediction cancelled");
@@ -94,7 +92,7 @@ public final class TiledPredictor {
 							int[] axes = f == 0 ? new int[0] : f == 1 ? new int[] {3} : f == 2 ? new int[] {2} : new int[] {2, 3};
 							NDArray x = sub.create(in, new Shape(1, im.nChannels(), ih, iw));
 							if (axes.length > 0) x = x.flip(axes);
-							NDArray logits = net.forward(new ParameterStore(sub, false), new NDList(x), false).singletonOrThrow();
+							NDArray logits = folded.forward(x);
 							if (axes.length > 0) logits = logits.flip(axes);
 							float[] pf = ai.djl.nn.Activation.sigmoid(logits).toFloatArray();
 							for (int i = 0; i < p.length; i++) p[i] += pf[i] / flips;
@@ -106,8 +104,6 @@ public final class TiledPredictor {
 								System.arraycopy(p, o * iw * ih + (y + dy) * iw + dx, out[o], (ty + y) * w + tx, cw);
 					}
 				}
-		} finally {
-			JniUtils.setGradMode(grad);
 		}
 		return out;
 	}
@@ -115,6 +111,4 @@ public final class TiledPredictor {
 	static int roundUp(int v, int m) {
 		return (v + m - 1) / m * m;
 	}
-
-	/** Mirror index into [0, n) (edge pixel not repeated); works for any offset. */
 }
