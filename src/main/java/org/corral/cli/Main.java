@@ -56,6 +56,9 @@ public final class Main {
 		  --all-boxed      every object of every image is boxed: all pixels outside the boxes are
 		                   background (default: only a ring around each box, safe when some objects
 		                   are not boxed)
+		  --instance-map on|off  also learn each object's distance to its edge, from the network's own
+		                   box masks, to split touching objects in whole images (default on)
+		  --augment on|off stain, gamma, blur and noise jitter of the crops (default off)
 		  --threads N      CPU threads (default: all)
 		""", LearnSettings.DEFAULT_STEPS, LearnSettings.DEFAULT_SEED, SupervisionSettings.DEFAULT_BAND);
 
@@ -298,10 +301,10 @@ public final class Main {
 			a.number("w-pair", s.weights.pairwise(), 0, any));
 		if (a.has("all-boxed")) s.background = Supervision.BackgroundMode.FULL;
 		if (a.has("partial")) s.background = Supervision.BackgroundMode.RING; // the default, named for scripts
-		String cen = a.str("centres", null);
+		String cen = a.str("instance-map", null);
 		if (cen != null) {
-			if (!cen.equals("on") && !cen.equals("off")) throw new CorralException(a.job() + ": --centres must be on or off, got '" + cen + "'");
-			s.centres = cen.equals("on");
+			if (!cen.equals("on") && !cen.equals("off")) throw new CorralException(a.job() + ": --instance-map must be on or off, got '" + cen + "'");
+			s.instanceMap = cen.equals("on");
 		}
 		String aug = a.str("augment", null);
 		if (aug != null) {

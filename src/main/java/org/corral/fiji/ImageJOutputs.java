@@ -83,20 +83,22 @@ public final class ImageJOutputs {
 	}
 
 	/** A CSV text table (header row) as a ResultsTable; numeric cells become numbers. */
-	public static ResultsTable fromCsv(String csv) {
-		String[] lines = csv.strip().split("\n");
-		String[] head = lines[0].split(",");
+	/** The per-object table of a whole-image result, with the columns of {@code NAME.objects.csv}. */
+	public static ResultsTable objectTable(java.util.List<org.corral.workflow.Jobs.ObjectRow> rows) {
 		ResultsTable rt = new ResultsTable();
-		for (int i = 1; i < lines.length; i++) {
-			String[] f = lines[i].split(",", -1);
+		for (var r : rows) {
+			var o = r.info();
 			rt.incrementCounter();
-			for (int c = 0; c < head.length && c < f.length; c++) {
-				try {
-					rt.addValue(head[c], Double.parseDouble(f[c]));
-				} catch (NumberFormatException e) {
-					rt.addValue(head[c], f[c]);
-				}
-			}
+			rt.addValue("object", r.id());
+			rt.addValue("slice", r.slice());
+			rt.addValue("x", o.x());
+			rt.addValue("y", o.y());
+			rt.addValue("width", o.width());
+			rt.addValue("height", o.height());
+			rt.addValue("area", o.area());
+			rt.addValue("mean_probability", o.meanProbability());
+			rt.addValue("confidence", o.confidence());
+			rt.addValue("flags", String.join(";", o.flags()));
 		}
 		return rt;
 	}

@@ -26,7 +26,7 @@ public final class BoxMasks {
 	 * the lines of slack at each side (a loose box's margin) and the box-size bound.
 	 */
 	public record Options(double threshold, boolean fit, int margin, double fillMax) {
-		public static final Options DEFAULTS = new Options(0.5, true, 0, 0.95);
+		public static final Options DEFAULTS = new Options(ImageMasks.THRESHOLD, true, 0, 0.95);
 
 		public Options withMargin(int m) {
 			return new Options(threshold, fit, m, fillMax);

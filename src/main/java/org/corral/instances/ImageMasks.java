@@ -14,8 +14,9 @@ import java.util.List;
  * Instances on an image without boxes: threshold the probability map, then split touching objects
  * with a seeded watershed on the distance transform (the classic binary watershed, after
  * "Watersheds in digital spaces", IEEE PAMI 1991; seeds = distance maxima that stand
- * out by more than a prominence), using ImageJ's EDM and MaximumFinder. Objects far smaller than
- * the learned object size are dropped as specks.
+ * out by more than a prominence), using ImageJ's EDM and MaximumFinder. With the network's instance
+ * map (the default), the seeds are its peaks instead and the watershed runs on it, and an object must
+ * reach its core height. Objects far smaller than the learned object size are dropped as specks.
  */
 public final class ImageMasks {
 	private ImageMasks() {}
@@ -25,6 +26,9 @@ public final class ImageMasks {
 		List<String> flags) {}
 
 	public record Result(int[] labels, int count, List<ObjectInfo> objects) {}
+
+	/** A pixel is object when the network gives it at least even odds (box masks start their fit here too). */
+	public static final double THRESHOLD = 0.5;
 
 	/**
 	 * @param objectSize typical object side in pixels (the learned median box side); sets the
@@ -50,12 +54,17 @@ public final class ImageMasks {
 		return make(prob, null, w, h, objectSize, threshold, prominence);
 	}
 
-	/** Seeds on the centre map: a peak must rise this much (on its 0..1 scale) above the saddle to its neighbour. */
-	public static final double CENTRE_PROMINENCE = 0.1;
+	/**
+	 * Seeds on the instance map: a peak must rise this much (on its 0..1 scale) above the saddle to its
+	 * neighbour. Measured (whole-image F1@0.5 on the other-look histology, adapted): 0.05 / 0.1 / 0.15 /
+	 * 0.2 gave 0.575 / 0.640 / 0.631 / 0.613 before the core-height rule, 0.1 and 0.15 0.692 / 0.686 with it.
+	 */
+	public static final double SEED_PROMINENCE = 0.1;
 
 	/**
-	 * @param centre the network's centre map, or null: with it, objects are split along the valleys of
-	 *               the centre map (one object per peak), else along those of the distance map
+	 * @param centre the network's instance map, or null: with it, objects are split along the valleys
+	 *               of the instance map (one object per peak) and must reach {@link #CORE_HEIGHT} on
+	 *               it, else they are split along the valleys of the distance transform
 	 */
 	public static Result make(float[] prob, float[] centre, int w, int h, double objectSize, double threshold, double prominence) {
 		boolean split = prominence > 0;
@@ -74,7 +83,7 @@ public final class ImageMasks {
 			if (centre != null) {
 				FloatProcessor cm = new FloatProcessor(w, h, centre.clone());
 				new GaussianBlur().blurGaussian(cm, 1.0, 1.0, 0.01);
-				seg = new MaximumFinder().findMaxima(cm, CENTRE_PROMINENCE, ImageProcessor.NO_THRESHOLD, MaximumFinder.SEGMENTED, false, false);
+				seg = new MaximumFinder().findMaxima(cm, SEED_PROMINENCE, ImageProcessor.NO_THRESHOLD, MaximumFinder.SEGMENTED, false, false);
 			} else {
 				new GaussianBlur().blurGaussian(edm, 1.0, 1.0, 0.01); // tames pixel-level ridges
 				seg = new MaximumFinder().findMaxima(edm, Math.max(MIN_PROMINENCE, prominence * size), ImageProcessor.NO_THRESHOLD, MaximumFinder.SEGMENTED, false, true);
@@ -89,9 +98,25 @@ public final class ImageMasks {
 		long[] area = Components.sizes(lab, cnt[0]);
 		int[] remap = new int[cnt[0] + 1];
 		int n = 0;
-		for (int l = 1; l <= cnt[0]; l++) remap[l] = area[l] >= minArea ? ++n : 0;
+		float[] peak = centre == null ? null : peaks(lab, cnt[0], centre);
+		for (int l = 1; l <= cnt[0]; l++) remap[l] = area[l] >= minArea && (peak == null || peak[l] >= CORE_HEIGHT) ? ++n : 0;
 		for (int i = 0; i < lab.length; i++) lab[i] = remap[lab[i]];
 		return new Result(lab, n, describe(lab, n, prob, w, h, size));
+	}
+
+	/**
+	 * With an instance map, an object must reach this height on it: a nucleus rises to its core (the
+	 * map learns 1 there), thin streaks and specks that pass the probability threshold do not.
+	 * Measured (whole-image F1@0.5, histology): other look, adapted 0.640 -> 0.692, not adapted 0.467
+	 * -> 0.519; within the developer look 0.742 -> 0.755; 0.6 and 0.7 cut real nuclei (pixel Dice
+	 * 0.81 -> 0.67 -> 0.46 on the other look).
+	 */
+	public static final double CORE_HEIGHT = 0.5;
+
+	static float[] peaks(int[] lab, int n, float[] map) {
+		float[] mx = new float[n + 1];
+		for (int i = 0; i < lab.length; i++) if (lab[i] > 0) mx[lab[i]] = Math.max(mx[lab[i]], map[i]);
+		return mx;
 	}
 
 	/** Watershed lines are one pixel wide: give each line pixel of the mask to a neighbouring object. */

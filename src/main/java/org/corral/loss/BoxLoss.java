@@ -32,22 +32,22 @@ import org.corral.supervision.Constraint;
 public final class BoxLoss {
 
 	/** The loss and its parts, as scalar NDArrays (the first one carries the gradient). */
-	public record Parts(NDArray total, NDArray background, NDArray constraints, NDArray pairwise, NDArray met, NDArray z, NDArray centre) {}
+	public record Parts(NDArray total, NDArray background, NDArray constraints, NDArray pairwise, NDArray met, NDArray z, NDArray instance) {}
 
 	/** Supervision of a batch as arrays; built once per step in plain Java. */
 	public static final class Targets {
 		final NDArray background, pairH, pairV, corners, target, sign, norm, weight;
 		final int nConstraints;
-		NDArray centre, centreWeight;
+		NDArray instance, instanceWeight;
 
 		/**
-		 * The centre map's targets ([B,1,H,W]): inside each box 1 - its normalised elliptical radius
-		 * (1 at the centre, 0 from the inscribed ellipse outwards), 0 on known background; weight 1
-		 * where the target is known.
+		 * The instance map's targets ([B,1,H,W]) in [0, 1] and their weights (0 = unknown): each
+		 * object's normalised distance to its edge from the network's own box masks, or early in
+		 * learning each box's inscribed-ellipse cone; 0 on known background ({@code train.CropSampler}).
 		 */
-		public Targets optCentre(NDManager m, int b, int h, int w, float[] target, float[] weight) {
-			this.centre = m.create(target, new Shape(b, 1, h, w));
-			this.centreWeight = m.create(weight, new Shape(b, 1, h, w));
+		public Targets optInstanceMap(NDManager m, int b, int h, int w, float[] target, float[] weight) {
+			this.instance = m.create(target, new Shape(b, 1, h, w));
+			this.instanceWeight = m.create(weight, new Shape(b, 1, h, w));
 			return this;
 		}
 
@@ -99,17 +99,21 @@ public final class BoxLoss {
 
 	private BoxLoss() {}
 
-	/** Weight of the centre-map term (ours, after the centre heatmaps of "Objects as points", 2019). */
-	public static final double CENTRE_WEIGHT = 1;
+	/**
+	 * Weight of the instance-map term: binary cross-entropy with soft targets, the regression of a
+	 * normalised distance map after "Segmentation of Nuclei in Histopathology Images by Deep Regression
+	 * of the Distance Map" (IEEE TMI 2019), on targets from the network's own box masks (ours).
+	 */
+	public static final double INSTANCE_WEIGHT = 1;
 
 	public static Parts compute(NDArray all, Targets tg, double t, LossWeights weights) {
-		NDArray logits = all, centre = null;
+		NDArray logits = all, instance = null;
 		if (all.getShape().get(1) == 2) {
 			logits = all.get(new NDIndex(":, 0:1"));
 			NDArray c = all.get(new NDIndex(":, 1:2"));
 			// binary cross-entropy with soft targets: softplus(x) - x t, where the target is known
-			NDArray n = tg.centreWeight.sum().maximum(1f);
-			centre = Activation.softPlus(c).sub(c.mul(tg.centre)).mul(tg.centreWeight).sum().div(n);
+			NDArray n = tg.instanceWeight.sum().maximum(1f);
+			instance = Activation.softPlus(c).sub(c.mul(tg.instance)).mul(tg.instanceWeight).sum().div(n);
 		}
 		NDArray s = Activation.sigmoid(logits);
 		// background: -log(1 - sigmoid(x)) = softplus(x), stable for large x
@@ -141,9 +145,9 @@ public final class BoxLoss {
 			met = bg.onesLike();
 			z = null;
 		}
-		if (centre != null) total = total.add(centre.mul((float) CENTRE_WEIGHT));
-		else centre = bg.zerosLike();
-		return new Parts(total, bg, cons, pair, met, z, centre);
+		if (instance != null) total = total.add(instance.mul((float) INSTANCE_WEIGHT));
+		else instance = bg.zerosLike();
+		return new Parts(total, bg, cons, pair, met, z, instance);
 	}
 
 	private static NDArray same(NDArray a, NDArray b) {

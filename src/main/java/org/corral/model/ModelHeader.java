@@ -19,7 +19,7 @@ public final class ModelHeader {
 	public int inChannels;
 	public int baseChannels;
 	public int levels;
-	/** Output maps: 1 = object probability; 2 = also the centre map (older files: 1). */
+	/** Output maps: 1 = object probability; 2 = also the instance map (older files: 1). */
 	public int outputs = 1;
 	// normalisation: per channel percentiles mapped to 0 and 1
 	public double normLow;

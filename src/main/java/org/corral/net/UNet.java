@@ -39,8 +39,8 @@ public final class UNet extends AbstractBlock {
 	}
 
 	/**
-	 * @param outputs 1: object logits; 2: also logits of the centre map, which peaks at each object's
-	 *                centre and falls to 0 at its edge (for splitting touching objects)
+	 * @param outputs 1: object logits; 2: also logits of the instance map, which rises from 0 at each
+	 *                object's edge to 1 at its core (for splitting touching objects)
 	 */
 	public UNet(int inChannels, int base, int levels, int outputs) {
 		super(VERSION);

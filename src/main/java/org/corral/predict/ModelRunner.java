@@ -105,7 +105,7 @@ public final class ModelRunner implements AutoCloseable {
 		return maps(raw, scale, cancelled, flips)[0];
 	}
 
-	/** Every output map at the image's own size: [0] object probability, [1] the centre map when the model has one. */
+	/** Every output map at the image's own size: [0] object probability, [1] the instance map when the model has one. */
 	public synchronized float[][] maps(PlanarImage raw, double scale, BooleanSupplier cancelled, int flips) {
 		predictor.optFlips(flips);
 		if (raw.nChannels() != header.inChannels)

@@ -20,7 +20,7 @@ final class CropSampler {
 	record Prepared(String name, PlanarImage image, PlanarImage guide, Supervision sup, float[][] bounds) {}
 
 	/** One crop, ready for the batch arrays. */
-	record Crop(float[][] channels, float[] background, float[] pairH, float[] pairV, List<Constraint> constraints, float[] centre, float[] centreWeight) {}
+	record Crop(float[][] channels, float[] background, float[] pairH, float[] pairV, List<Constraint> constraints, float[] instance, float[] instanceWeight) {}
 
 	private final List<Prepared> images;
 	private final int[] boxImage, boxIndex;
@@ -28,6 +28,8 @@ final class CropSampler {
 	private final LearnSettings settings;
 	private final org.corral.supervision.SupervisionSettings recipe;
 	private final SplittableRandom rnd;
+	/** Per image: the instance output's target and weight from the network's own box masks, or null (ellipses). */
+	private final float[][] maskTarget, maskWeight;
 
 	CropSampler(List<Prepared> images, LearnSettings settings, SplittableRandom rnd) {
 		this.images = images;
@@ -35,6 +37,8 @@ final class CropSampler {
 		this.settings = settings;
 		this.recipe = settings.supervision();
 		this.rnd = rnd;
+		this.maskTarget = new float[images.size()][];
+		this.maskWeight = new float[images.size()][];
 		int n = 0;
 		for (Prepared p : images) n += p.sup().boxes.size();
 		boxImage = new int[n];
@@ -47,9 +51,16 @@ final class CropSampler {
 			}
 	}
 
+	/** From now on the instance output of image {@code i} learns these targets (weight 0 = unknown). */
+	void useMaskTargets(int i, float[] target, float[] weight) {
+		maskTarget[i] = target;
+		maskWeight[i] = weight;
+	}
+
 	Crop next() {
 		int pick = rnd.nextInt(boxImage.length);
-		Prepared p = images.get(boxImage[pick]);
+		int img = boxImage[pick];
+		Prepared p = images.get(img);
 		Box centre = p.sup().boxes.get(boxIndex[pick]);
 		int s = size;
 		int ox = (int) Math.round(centre.centreX() - s / 2.0) + rnd.nextInt(-s / 4, s / 4 + 1);
@@ -98,8 +109,21 @@ final class CropSampler {
 				if (x + 1 < s && (inBox[i] != 0 || inBox[i + 1] != 0) && dist2(guide, i, i + 1) < tol2) ph[y * (s - 1) + x] = 1;
 				if (y + 1 < s && (inBox[i] != 0 || inBox[i + s] != 0) && dist2(guide, i, i + s) < tol2) pv[y * s + x] = 1;
 			}
-		// the centre map: every box that reaches into the crop, in the crop's (transformed) frame
 		float[] cen = new float[s * s], cw = new float[s * s];
+		if (maskTarget[img] != null) {
+			float[] mt = maskTarget[img], mw = maskWeight[img];
+			for (int y = 0; y < s; y++)
+				for (int x = 0; x < s; x++) {
+					int ix = ox + x, iy = oy + y;
+					if (ix < 0 || iy < 0 || ix >= w || iy >= h) continue;
+					int dst = target(d, x, y, s);
+					cen[dst] = mt[iy * w + ix];
+					cw[dst] = mw[iy * w + ix];
+				}
+			return new Crop(ch, bg, ph, pv, cons, cen, cw);
+		}
+		// early in learning, the instance map of every box that reaches into the crop is the cone of its
+		// inscribed ellipse (1 at the centre), in the crop's (transformed) frame
 		for (int i = 0; i < cw.length; i++) cw[i] = bg[i];
 		for (Box b : p.sup().boxes) {
 			if (b.x1() <= ox || b.y1() <= oy || b.x() >= ox + s || b.y() >= oy + s) continue;

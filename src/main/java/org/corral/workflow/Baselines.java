@@ -8,6 +8,7 @@ import java.util.List;
 import org.corral.boxes.Box;
 import org.corral.image.PlanarImage;
 import org.corral.instances.BoxMasks;
+import org.corral.instances.ImageMasks;
 
 /** Classical masks made from the same boxes, to compare against: the box itself, Otsu in the box. */
 public final class Baselines {
@@ -16,7 +17,7 @@ public final class Baselines {
 	public static int[] boxItself(PlanarImage im, List<Box> boxes) {
 		float[] one = new float[im.width * im.height];
 		Arrays.fill(one, 1f);
-		return BoxMasks.make(one, im.width, im.height, boxes, 0.5).labels();
+		return BoxMasks.make(one, im.width, im.height, boxes, ImageMasks.THRESHOLD).labels();
 	}
 
 	/** The ellipse inscribed in each box: a box-shaped guess that a mask must beat. */
@@ -32,7 +33,7 @@ public final class Baselines {
 					if (dx * dx + dy * dy <= 1) e[y * im.width + x] = 1f;
 				}
 		}
-		return BoxMasks.make(e, im.width, im.height, boxes, 0.5).labels();
+		return BoxMasks.make(e, im.width, im.height, boxes, ImageMasks.THRESHOLD).labels();
 	}
 
 	/**
@@ -73,7 +74,7 @@ public final class Baselines {
 					if (bin > t) prob[y * w + x] = 1f;
 				}
 		}
-		return BoxMasks.make(prob, w, h, boxes, 0.5).labels();
+		return BoxMasks.make(prob, w, h, boxes, ImageMasks.THRESHOLD).labels();
 	}
 
 	/** The classical whole-image baseline: global Otsu threshold, then the distance-transform watershed. */
@@ -91,6 +92,6 @@ public final class Baselines {
 			int t = new AutoThresholder().getThreshold(AutoThresholder.Method.Otsu, hist);
 			for (int i = 0; i < g.length; i++) bin[i] = (int) ((g[i] - lo) / (hi - lo) * 255) > t ? 1f : 0f;
 		}
-		return org.corral.instances.ImageMasks.make(bin, im.width, im.height, objectSize, 0.5, true).labels();
+		return org.corral.instances.ImageMasks.make(bin, im.width, im.height, objectSize, ImageMasks.THRESHOLD, true).labels();
 	}
 }

@@ -97,7 +97,7 @@ public final class Benchmark {
 				wholeSeconds += (System.nanoTime() - w0) / 1e9;
 				whole.add(Scores.compare(o.result().labels(), ref));
 				double size = r.header().objectSize / o.scale();
-				plainCC.add(Scores.compare(org.corral.instances.ImageMasks.make(o.probability(), im.width, im.height, size, 0.5, false).labels(), ref));
+				plainCC.add(Scores.compare(org.corral.instances.ImageMasks.make(o.probability(), im.width, im.height, size, org.corral.instances.ImageMasks.THRESHOLD, false).labels(), ref));
 				classical.add(Scores.compare(Baselines.otsuWatershed(im, r.header().objectSize), ref));
 			}
 		}

@@ -100,6 +100,8 @@ public final class CrossBenchmark {
 			log.accept("  adapting: " + as.steps + " steps on " + nBoxes + " boxes of " + own.size() + " images");
 			try (Learner.Result r = Adaptation.adapt(base, own, as, quiet(log)); ModelRunner adapted = new ModelRunner(r.header(), r.net(), r.manager())) {
 				double adaptS = (System.nanoTime() - t1) / 1e9;
+				if (cache != null) // kept for offline study of the instance stage
+					ModelFile.write(cache.resolve("adapted").resolve(a.getFileName() + "-to-" + b.getFileName() + ".zip"), r.header(), r.net());
 				rows.addAll(mask("corral, adapted", adapted, sp.mask(), labels, adaptS, cache, log));
 			}
 		}

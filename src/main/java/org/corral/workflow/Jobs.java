@@ -359,8 +359,22 @@ public final class Jobs {
 		return r;
 	}
 
-	/** Whole-image result of one image: labels per stack position, outlines, proposed boxes, table. */
-	public record WholeImageOutcome(int[][] labels, int count, List<Roi> outlines, List<Roi> proposals, String table, PlanarImage shown) {}
+	/** One object of a whole-image result: its id in the label image, its stack position and its figures. */
+	public record ObjectRow(int id, int slice, org.corral.instances.ImageMasks.ObjectInfo info) {}
+
+	/** Whole-image result of one image: labels per stack position, outlines, proposed boxes, one row per object. */
+	public record WholeImageOutcome(int[][] labels, int count, List<Roi> outlines, List<Roi> proposals, List<ObjectRow> objects, PlanarImage shown) {
+		/** The per-object table as written to {@code NAME.objects.csv}. */
+		public String table() {
+			StringBuilder csv = new StringBuilder(OBJECT_HEADER + "\n");
+			for (ObjectRow r : objects) {
+				var oi = r.info();
+				csv.append(String.format(Locale.ROOT, "%d,%d,%d,%d,%d,%d,%d,%.4f,%.4f,%s%n", r.id(), r.slice(), oi.x(), oi.y(), oi.width(), oi.height(), oi.area(),
+					oi.meanProbability(), oi.confidence(), String.join(";", oi.flags())));
+			}
+			return csv.toString();
+		}
+	}
 
 	public static final String OBJECT_HEADER = "object,slice,x,y,width,height,area,mean_probability,confidence,flags";
 
@@ -368,7 +382,7 @@ public final class Jobs {
 		int n = ImageFiles.positions(imp), w = imp.getWidth(), h = imp.getHeight();
 		int[][] labels = new int[n][];
 		List<Roi> rois = new ArrayList<>(), rects = new ArrayList<>();
-		StringBuilder csv = new StringBuilder(OBJECT_HEADER + "\n");
+		List<ObjectRow> rows = new ArrayList<>();
 		PlanarImage first = null;
 		int total = 0;
 		for (int p = 1; p <= n; p++) {
@@ -383,8 +397,7 @@ public final class Jobs {
 			for (org.corral.instances.ImageMasks.ObjectInfo oi : o.result().objects()) {
 				int id = oi.label() + total;
 				names[id - 1] = String.format(Locale.ROOT, "object-%04d", id);
-				csv.append(String.format(Locale.ROOT, "%d,%d,%d,%d,%d,%d,%d,%.4f,%.4f,%s%n", id, p, oi.x(), oi.y(), oi.width(), oi.height(), oi.area(),
-					oi.meanProbability(), oi.confidence(), String.join(";", oi.flags())));
+				rows.add(new ObjectRow(id, p, oi));
 				Roi r = new Roi(oi.x(), oi.y(), oi.width(), oi.height());
 				r.setName(String.format(Locale.ROOT, "proposed-%04d", id));
 				if (n > 1) r.setPosition(p);
@@ -396,6 +409,6 @@ public final class Jobs {
 			}
 			total += o.result().count();
 		}
-		return new WholeImageOutcome(labels, total, rois, rects, csv.toString(), first);
+		return new WholeImageOutcome(labels, total, rois, rects, rows, first);
 	}
 }

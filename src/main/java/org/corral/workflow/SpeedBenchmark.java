@@ -114,12 +114,12 @@ public final class SpeedBenchmark {
 					BoxMasks.make(p4, raw.width, raw.height, boxed.get(f), BoxMasks.Options.DEFAULTS);
 					fit.add(t, mp);
 					t = System.nanoTime();
-					ImageMasks.Result res = ImageMasks.make(maps[0], maps.length > 1 ? maps[1] : null, raw.width, raw.height, model.header().objectSize, 0.5,
+					ImageMasks.Result res = ImageMasks.make(maps[0], maps.length > 1 ? maps[1] : null, raw.width, raw.height, model.header().objectSize, ImageMasks.THRESHOLD,
 						ImageMasks.PROMINENCE);
 					inst.add(t, mp);
 					// the library calls inside the instance stage, timed alone on the same mask
 					ByteProcessor bin = new ByteProcessor(raw.width, raw.height);
-					for (int i = 0; i < maps[0].length; i++) if (maps[0][i] >= 0.5) bin.set(i, 255);
+					for (int i = 0; i < maps[0].length; i++) if (maps[0][i] >= ImageMasks.THRESHOLD) bin.set(i, 255);
 					t = System.nanoTime();
 					FloatProcessor d = new EDM().makeFloatEDM(bin, 0, false);
 					edm.add(t, mp);

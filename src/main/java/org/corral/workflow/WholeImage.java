@@ -48,7 +48,7 @@ public final class WholeImage {
 	public static final double ESTIMATE_TOLERANCE = 1.6;
 
 	static ImageMasks.Result instances(float[][] maps, PlanarImage im, double size) {
-		return ImageMasks.make(maps[0], maps.length > 1 ? maps[1] : null, im.width, im.height, size, 0.5, ImageMasks.PROMINENCE);
+		return ImageMasks.make(maps[0], maps.length > 1 ? maps[1] : null, im.width, im.height, size, ImageMasks.THRESHOLD, ImageMasks.PROMINENCE);
 	}
 
 	public static List<Box> boxes(ImageMasks.Result r) {

@@ -112,6 +112,12 @@ class CommandsTest {
 		ResultsTable objects = (ResultsTable) m.getOutput("objects");
 		assertTrue(objects.size() >= 5, "objects found: " + objects.size());
 		assertEquals(objects.size(), (int) labels.getStatistics().max);
+		// the Fiji table has the columns of NAME.objects.csv, filled from the same rows (no text parsed back)
+		assertEquals(String.join(",", org.corral.workflow.Jobs.OBJECT_HEADER.split(",")), String.join(",", objects.getHeadings()));
+		for (int r = 0; r < objects.size(); r++) {
+			assertEquals(r + 1, (int) objects.getValue("object", r));
+			assertTrue(objects.getValue("area", r) > 0 && objects.getValue("mean_probability", r) >= 0.5);
+		}
 
 		ImagePlus ref = IJ.openImage(ReferenceData.demo().resolve("reference").resolve("seedcoat-04.tif").toString());
 		ResultsTable scores = (ResultsTable) run(ScoreAgainstReference.class, Map.of("labels", labels, "reference", ref)).getOutput("scores");

@@ -7,6 +7,7 @@ import java.nio.file.Path;
 
 import org.corral.ReferenceData;
 import org.corral.image.PlanarImage;
+import org.corral.instances.DistanceTargets;
 import org.corral.io.ImageFiles;
 import org.corral.model.ModelFile;
 import org.corral.predict.ModelRunner;
@@ -16,36 +17,48 @@ import org.corral.train.Progress;
 import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.io.TempDir;
 
-/** The optional centre map (--centres on): a second output that is saved, read back and used for whole images. */
-class CentreMapTest {
+/** The instance map (default): a second output, saved and read back, high at object cores and low at their rims. */
+class InstanceMapTest {
 	@TempDir
 	Path dir;
 
 	@Test
-	void aTwoOutputModelRoundTripsAndMasksWholeImages() {
+	void learnedByDefaultRisesTowardsObjectCoresAndMasksWholeImages() {
 		var boxed = BoxedImages.find(ReferenceData.demo().resolve("images"), ReferenceData.demo().resolve("boxes.csv"));
 		LearnSettings s = new LearnSettings();
-		s.steps = 30;
+		s.steps = 60;
 		s.minutes = 0;
-		s.base = 16;
-		s.centres = true;
 		Path file = dir.resolve("c.zip");
 		try (Learner.Result r = new Learner(s).learn(Jobs.trainingImages(boxed), Progress.silent())) {
-			assertEquals(2, r.header().outputs);
+			assertEquals(2, r.header().outputs, "on by default");
 			ModelFile.write(file, r.header(), r.net());
 		}
 		try (ModelRunner m = ModelRunner.open(file)) {
 			assertEquals(2, m.header().outputs);
-			PlanarImage im = ImageFiles.read(boxed.keySet().iterator().next());
-			float[][] maps = m.maps(im, 1, null, 1);
-			assertEquals(2, maps.length);
-			float lo = 1, hi = 0;
-			for (float v : maps[1]) {
-				lo = Math.min(lo, v);
-				hi = Math.max(hi, v);
+			double core = 0, rim = 0;
+			long nCore = 0, nRim = 0;
+			for (Path img : boxed.keySet()) {
+				PlanarImage im = ImageFiles.read(img);
+				float[][] maps = m.maps(im, 1, null, 1);
+				assertEquals(2, maps.length);
+				for (float v : maps[1]) assertTrue(v >= 0 && v <= 1);
+				// the demo's reference masks (test-images/reference): cores and rims by their own distance map
+				int[] ref = ImageFiles.readLabels(ReferenceData.demo().resolve("reference").resolve(img.getFileName()), null);
+				float[] d = DistanceTargets.of(ref, im.width, im.height);
+				for (int i = 0; i < d.length; i++) {
+					if (d[i] >= 0.7) { core += maps[1][i]; nCore++; }
+					else if (d[i] > 0 && d[i] <= 0.3) { rim += maps[1][i]; nRim++; }
+				}
+				assertTrue(WholeImage.mask(m, im, 0).result().count() > 0, "objects found with the instance map's seeds");
 			}
-			assertTrue(lo >= 0 && hi <= 1 && hi > lo, "a centre map in [0, 1] with some contrast: " + lo + ".." + hi);
-			assertTrue(WholeImage.mask(m, im, 0).result().count() > 0, "objects found with the centre map's seeds");
+			core /= nCore;
+			rim /= nRim;
+			assertTrue(core > rim + 0.2, "instance map at object cores " + core + " against rims " + rim);
+		}
+		s.instanceMap = false;
+		s.steps = 3;
+		try (Learner.Result r = new Learner(s).learn(Jobs.trainingImages(boxed), Progress.silent())) {
+			assertEquals(1, r.header().outputs, "--instance-map off: one output");
 		}
 	}
 }

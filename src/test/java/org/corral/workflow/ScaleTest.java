@@ -20,7 +20,11 @@ import org.corral.train.Progress;
 import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.io.TempDir;
 
-/** A model learned on the demo's nuclei must still mask the same nuclei shown 2.5x larger. */
+/**
+ * A model learned on the demo's nuclei must still mask the same nuclei shown 3.5x larger. The demo's smooth
+ * ellipses generalise across scale well (at 2.5x, rescaled and not were within 0.0004 with the instance
+ * map on), so the gain asserted at 3.5x is small (0.0015 when written); the factor itself is asserted exactly.
+ */
 class ScaleTest {
 	@TempDir
 	Path dir;
@@ -33,7 +37,7 @@ class ScaleTest {
 		s.steps = 100;
 		s.minutes = 0;
 		Jobs.learn(boxed, null, s, dir.resolve("m.zip"), Progress.silent(), n -> {}).close();
-		double f = 2.5;
+		double f = 3.5;
 		Scores.Tally scaled = new Scores.Tally(), unscaled = new Scores.Tally(), whole = new Scores.Tally();
 		try (ModelRunner m = ModelRunner.open(dir.resolve("m.zip"))) {
 			for (var e : boxed.entrySet()) {
@@ -54,7 +58,7 @@ class ScaleTest {
 				whole.add(Scores.compare(WholeImage.mask(m, big, 0).result().labels(), refLabels));
 			}
 		}
-		System.out.printf("2.5x larger demo objects: per-object Dice %.4f rescaled, %.4f not; whole-image F1 %.4f%n", scaled.objectDice(), unscaled.objectDice(),
+		System.out.printf("3.5x larger demo objects: per-object Dice %.4f rescaled, %.4f not; whole-image F1 %.4f%n", scaled.objectDice(), unscaled.objectDice(),
 			whole.f1(0.5));
 		assertTrue(scaled.objectDice() > 0.85, "rescaled " + scaled.objectDice());
 		assertTrue(scaled.objectDice() >= unscaled.objectDice(), "rescaling helps: " + scaled.objectDice() + " vs " + unscaled.objectDice());
