@@ -83,6 +83,11 @@ public final class UNet extends AbstractBlock {
 		return Math.round(f);
 	}
 
+	/** Channels of the widest full-resolution tensor: the decoder's concatenation of level 0 and the level below. */
+	public int widestFullResolution() {
+		return width(0) + width(1);
+	}
+
 	private int width(int level) {
 		return base << level;
 	}

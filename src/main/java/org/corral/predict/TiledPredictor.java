@@ -33,12 +33,29 @@ public final class TiledPredictor {
 	}
 
 	/**
-	 * Tiles of at most 640 x 640 pixels: with the context, a full-resolution feature map of the
-	 * default network stays under 32 MiB, the largest buffer glibc can be told to reuse instead of
-	 * mapping it afresh (fresh pages cost about 7 us each on these machines: measured, PLATFORM.md).
+	 * Tiles sized so that the network's largest buffer, the decoder's full-resolution concatenation
+	 * ({@link UNet#widestFullResolution()} channels, context included), stays within 32 MiB: the
+	 * largest buffer glibc can be told to reuse instead of mapping it afresh (fresh pages cost about
+	 * 7 us each on these machines: measured, PLATFORM.md). For the default network that is 352 px;
+	 * measured on 10 BBBC039 fields of 696x520 ({@code benchmark --speed}, 2 cores): one pass at 0.50
+	 * MP/s with tiles of at most 640, 0.95-1.00 with 352-448 (2x2 tiles of 348x260), 0.86 with 320.
 	 */
 	public TiledPredictor(UNet net, NDManager manager) {
-		this(net, manager, 640, 32);
+		this(net, manager, tileFor(net, 32), 32);
+	}
+
+	static final long REUSED_BUFFER_BYTES = 32L << 20;
+
+	/** The tile side the default constructor uses for this network. */
+	public static int defaultTile(UNet net) {
+		return tileFor(net, 32);
+	}
+
+	/** The largest tile side (a multiple of the pooling grid, at least 64) whose widest buffer fits {@link #REUSED_BUFFER_BYTES}. */
+	static int tileFor(UNet net, int overlap) {
+		double side = Math.sqrt(REUSED_BUFFER_BYTES / (4.0 * net.widestFullResolution())) - 2 * overlap;
+		int m = net.multiple();
+		return Math.max(64, (int) (side / m) * m);
 	}
 
 	/**

@@ -81,20 +81,34 @@ public final class SpeedBenchmark {
 			s.reportEvery = 1;
 			s.minutes = 0;
 			Learner.Result r = new Learner(s).learn(Jobs.trainingImages(sorted(boxed)), rep -> times[rep.step()] = rep.secondsPerStep() * rep.step());
-			int from = Math.min(2, s.steps - 1); // the first steps pay for warm-up
-			double sps = (times[s.steps] - times[from]) / Math.max(1, s.steps - from);
-			out.append(String.format(Locale.ROOT, "learning: %.3f s/step (batch %d of %dx%d, width %d, %d steps, first %d not counted)%n", sps, s.batch, s.crop,
-				s.crop, s.base, s.steps, from));
+			// the median step: neither the warm-up steps nor the step that masks the learning images
+			// for the instance map's targets count
+			double[] per = new double[s.steps - 1];
+			for (int k = 2; k <= s.steps; k++) per[k - 2] = times[k] - times[k - 1];
+			java.util.Arrays.sort(per);
+			double sps = per.length == 0 ? times[s.steps] : per[per.length / 2];
+			out.append(String.format(Locale.ROOT, "learning: %.3f s/step (median of %d steps; batch %d of %dx%d, width %d)%n", sps, s.steps, s.batch, s.crop,
+				s.crop, s.base));
+			out.append(String.format(Locale.ROOT, "learning, whole run: %.1f s for %d steps%n", times[s.steps], s.steps));
 			model = new ModelRunner(r.header(), r.net(), r.manager());
 		}
 		try (model; NDManager m = NDManager.newBaseManager()) {
 			long flops = model.net().flopsPerPixel();
-			Stage read = new Stage("read"), norm = new Stage("normalise"), net = new Stage("network, 1 pass"), flips = new Stage("network, 4 flips (box masks)"),
+			Stage read = new Stage("read"), norm = new Stage("normalise"), net = new Stage("network, 1 pass, tiles of " + TiledPredictor.defaultTile(model.net())), flips = new Stage("network, 4 flips (box masks)"),
 				inst = new Stage("instance stage (whole image)"), edm = new Stage("  of which distance map"), shed = new Stage("  of which watershed"),
 				outl = new Stage("outlines"), write = new Stage("writing"), fit = new Stage("box masks, fitted");
 			TiledPredictor one = new TiledPredictor(model.net(), m), four = new TiledPredictor(model.net(), m).optFlips(4);
+			TiledPredictor big = new TiledPredictor(model.net(), m, 640, 32);
+			Stage bigTiles = new Stage("network, 1 pass, tiles of 640");
 			Path tmp = Files.createTempDirectory("corral-speed");
 			try {
+				// the engine prepares its kernels for each new tile shape on first use: one untimed pass each
+				for (Path f : files) {
+					PlanarImage n = Normalise.percentiles(ImageFiles.read(f), model.header().normLow, model.header().normHigh);
+					one.predictMaps(n, null);
+					four.predictMaps(n, null);
+					big.predictMaps(n, null);
+				}
 				for (Path f : files) {
 					long t = System.nanoTime();
 					ImagePlus imp = ImageFiles.open(f);
@@ -107,6 +121,9 @@ public final class SpeedBenchmark {
 					t = System.nanoTime();
 					float[][] maps = one.predictMaps(n, null);
 					net.add(t, mp);
+					t = System.nanoTime();
+					big.predictMaps(n, null);
+					bigTiles.add(t, mp);
 					t = System.nanoTime();
 					float[] p4 = four.predictMaps(n, null)[0];
 					flips.add(t, mp);
@@ -137,7 +154,7 @@ public final class SpeedBenchmark {
 				}
 				out.append(String.format(Locale.ROOT, "%d image(s), %.2f MP, network %,d FLOP per pixel%n", files.size(), read.megapixels, flops));
 				out.append(String.format(Locale.ROOT, "%-34s %9s %9s%n", "stage", "seconds", "MP/s"));
-				for (Stage s : List.of(read, norm, net, flips, fit, inst, edm, shed, outl, write))
+				for (Stage s : List.of(read, norm, net, bigTiles, flips, fit, inst, edm, shed, outl, write))
 					out.append(String.format(Locale.ROOT, "%-34s %9.3f %9.3f%n", s.name, s.seconds, s.megapixels / s.seconds));
 				double gf = flops * net.megapixels * 1e6 / net.seconds / 1e9;
 				out.append(String.format(Locale.ROOT, "network: %.1f GFLOP/s = %.0f %% of the matrix product (image pixels only; tile context not counted)%n", gf, 100 * gf / gemm));
