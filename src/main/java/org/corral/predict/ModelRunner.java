@@ -25,14 +25,14 @@ public final class ModelRunner implements AutoCloseable {
 
 	private final ModelHeader header;
 	private final NDManager manager;
-	private final TiledPredictor predictor;
+	/** Made at the first prediction: its tile size depends on the network. */
+	private TiledPredictor predictor;
 	private final UNet net;
 
 	public ModelRunner(ModelHeader header, UNet net, NDManager manager) {
 		this.header = header;
 		this.net = net;
 		this.manager = manager;
-		this.predictor = new TiledPredictor(net, manager);
 	}
 
 	public static ModelRunner open(Path modelFile) {
@@ -107,6 +107,7 @@ public final class ModelRunner implements AutoCloseable {
 
 	/** Every output map at the image's own size: [0] object probability, [1] the instance map when the model has one. */
 	public synchronized float[][] maps(PlanarImage raw, double scale, BooleanSupplier cancelled, int flips) {
+		if (predictor == null) predictor = new TiledPredictor(net, manager);
 		predictor.optFlips(flips);
 		if (raw.nChannels() != header.inChannels)
 			throw new CorralException("The model was learned on " + header.inChannels + "-channel images; this image has " + raw.nChannels());
