@@ -30,7 +30,7 @@ public final class FoldedNetwork implements AutoCloseable {
 	private static final Shape ONE = new Shape(1, 1), PAD = new Shape(1, 1), NONE = new Shape(0, 0);
 
 	private final NDManager manager;
-	private final int levels, outputs, inChannels;
+	private final int levels;
 	/** [weight, bias] per 3x3 convolution: encoder level i at 2i, 2i+1; decoder level i after them. */
 	private final List<NDArray[]> convs = new ArrayList<>();
 	private final NDArray headW, headB;
@@ -39,8 +39,6 @@ public final class FoldedNetwork implements AutoCloseable {
 	public FoldedNetwork(UNet net, NDManager parent) {
 		this.manager = parent.newSubManager();
 		this.levels = Integer.numberOfTrailingZeros(net.multiple()) + 1;
-		this.outputs = net.outputs();
-		this.inChannels = net.inChannels();
 		var children = net.getChildren();
 		Block head = null;
 		for (int c = 0; c < children.size(); c++) {
@@ -101,14 +99,6 @@ public final class FoldedNetwork implements AutoCloseable {
 	private NDArray layer(NDArray x, int k) {
 		NDArray[] wb = convs.get(k);
 		return Activation.relu(Conv2d.conv2d(x, wb[0], wb[1], ONE, PAD).singletonOrThrow());
-	}
-
-	public int outputs() {
-		return outputs;
-	}
-
-	public int inChannels() {
-		return inChannels;
 	}
 
 	@Override

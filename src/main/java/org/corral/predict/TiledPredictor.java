@@ -41,14 +41,16 @@ public final class TiledPredictor {
 	 * MP/s with tiles of at most 640, 0.95-1.00 with 352-448 (2x2 tiles of 348x260), 0.86 with 320.
 	 */
 	public TiledPredictor(UNet net, NDManager manager) {
-		this(net, manager, tileFor(net, 32), 32);
+		this(net, manager, defaultTile(net), OVERLAP);
 	}
 
 	static final long REUSED_BUFFER_BYTES = 32L << 20;
+	/** Mirrored context on each side of a tile: more than the default network's receptive field reaches. */
+	static final int OVERLAP = 32;
 
 	/** The tile side the default constructor uses for this network. */
 	public static int defaultTile(UNet net) {
-		return tileFor(net, 32);
+		return tileFor(net, OVERLAP);
 	}
 
 	/** The largest tile side (a multiple of the pooling grid, at least 64) whose widest buffer fits {@link #REUSED_BUFFER_BYTES}. */

@@ -30,6 +30,8 @@ final class CropSampler {
 	private final SplittableRandom rnd;
 	/** Per image: the instance output's target and weight from the network's own box masks, or null (ellipses). */
 	private final float[][] maskTarget, maskWeight;
+	/** Continued learning: until mask targets exist, the instance output learns nothing (weight 0). */
+	private boolean keepInstanceMap;
 
 	CropSampler(List<Prepared> images, LearnSettings settings, SplittableRandom rnd) {
 		this.images = images;
@@ -55,6 +57,11 @@ final class CropSampler {
 	void useMaskTargets(int i, float[] target, float[] weight) {
 		maskTarget[i] = target;
 		maskWeight[i] = weight;
+	}
+
+	/** Leave the instance output as it was learned until {@link #useMaskTargets} gives targets. */
+	void keepInstanceMap() {
+		keepInstanceMap = true;
 	}
 
 	Crop next() {
@@ -122,6 +129,7 @@ final class CropSampler {
 				}
 			return new Crop(ch, bg, ph, pv, cons, cen, cw);
 		}
+		if (keepInstanceMap) return new Crop(ch, bg, ph, pv, cons, cen, cw); // all weights 0
 		// early in learning, the instance map of every box that reaches into the crop is the cone of its
 		// inscribed ellipse (1 at the centre), in the crop's (transformed) frame
 		for (int i = 0; i < cw.length; i++) cw[i] = bg[i];

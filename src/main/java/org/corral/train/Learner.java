@@ -74,7 +74,6 @@ public final class Learner {
 		int nc = images.get(0).image().nChannels();
 		int nBoxes = 0;
 		List<CropSampler.Prepared> prepared = new ArrayList<>();
-		List<TrainingImage> kept = new ArrayList<>();
 		List<Double> sides = new ArrayList<>(), microns = new ArrayList<>();
 		for (TrainingImage ti : images) {
 			microns.add(ti.image().micronsPerPixel());
@@ -85,7 +84,6 @@ public final class Learner {
 			if (sup.boxes.isEmpty()) continue;
 			nBoxes += sup.boxes.size();
 			for (Box b : ti.boxes()) sides.add((b.width() + b.height()) / 2.0); // as drawn: masking sees boxes drawn alike
-			kept.add(ti);
 			prepared.add(new CropSampler.Prepared(ti.name(), norm, Resample.mean3(norm), sup, Normalise.bounds(ti.image(), Normalise.LOW, Normalise.HIGH)));
 		}
 		if (nBoxes == 0) throw new CorralException("Nothing to learn from: none of the " + images.size() + " image(s) has a box inside it");
@@ -98,11 +96,7 @@ public final class Learner {
 				+ from.header().baseChannels + " and " + from.header().levels + " levels; these images have " + nc + " channel(s)");
 		int outputs = from != null ? Math.max(1, from.header().outputs) : s.instanceMap ? 2 : 1;
 		UNet net = new UNet(nc, s.base, s.levels, outputs);
-		if (from != null && outputs == 2) // the learned instance output is kept until new targets exist
-			for (int i = 0; i < prepared.size(); i++) {
-				int n = prepared.get(i).image().width * prepared.get(i).image().height;
-				sampler.useMaskTargets(i, new float[n], new float[n]);
-			}
+		if (from != null && outputs == 2) sampler.keepInstanceMap(); // until new targets exist
 		int[] total = {s.steps};
 		boolean shortened = false;
 		Tracker lr = step -> (float) (s.learningRate * lrFactor(step, total[0]));
@@ -128,7 +122,7 @@ public final class Learner {
 			for (int step = 1; step <= total[0]; step++) {
 				if (progress.cancelled()) throw new CancellationException("learning cancelled at step " + step);
 				double t = tAt(step, total[0]);
-				if (outputs == 2 && step == maskTargetStep(total[0])) maskTargets(net, nc, kept, prepared, sampler, trainer.getManager());
+				if (outputs == 2 && step == maskTargetStep(total[0])) maskTargets(net, prepared, sampler, trainer.getManager());
 				float[] x = new float[b * nc * c * c], bg = new float[b * c * c], ph = new float[b * c * (c - 1)], pv = new float[b * (c - 1) * c];
 				float[] cen = new float[b * c * c], cw = new float[b * c * c];
 				List<List<org.corral.supervision.Constraint>> cons = new ArrayList<>();
@@ -241,19 +235,14 @@ public final class Learner {
 	 * masks ({@link org.corral.instances.DistanceTargets}) becomes the target inside the boxes, 0 on
 	 * known background.
 	 */
-	private void maskTargets(UNet net, int nc, List<TrainingImage> kept, List<CropSampler.Prepared> prepared, CropSampler sampler, NDManager parent) {
-		ModelHeader h = new ModelHeader();
-		h.inChannels = nc;
-		h.baseChannels = s.base;
-		h.levels = s.levels;
-		h.outputs = 2;
-		h.normLow = Normalise.LOW;
-		h.normHigh = Normalise.HIGH;
-		try (org.corral.predict.ModelRunner r = new org.corral.predict.ModelRunner(h, net, parent.newSubManager())) {
-			for (int i = 0; i < kept.size(); i++) {
-				PlanarImage im = kept.get(i).image();
+	private void maskTargets(UNet net, List<CropSampler.Prepared> prepared, CropSampler sampler, NDManager parent) {
+		try (NDManager m = parent.newSubManager()) {
+			// the images as learning sees them, already normalised; one pass each, as whole images are masked
+			org.corral.predict.TiledPredictor predictor = new org.corral.predict.TiledPredictor(net, m);
+			for (int i = 0; i < prepared.size(); i++) {
+				PlanarImage im = prepared.get(i).image();
 				Supervision sup = prepared.get(i).sup();
-				float[] prob = r.maps(im, 1, null, 1)[0];
+				float[] prob = predictor.predictMaps(im, null)[0];
 				int[] lab = org.corral.instances.BoxMasks.make(prob, im.width, im.height, sup.boxes,
 					org.corral.instances.BoxMasks.Options.DEFAULTS.withMargin(s.margin)).labels();
 				float[] tg = org.corral.instances.DistanceTargets.of(lab, im.width, im.height);
