@@ -20,7 +20,9 @@ import org.corral.workflow.Benchmark;
 import org.corral.workflow.BoxedImages;
 import org.corral.workflow.Adaptation;
 import org.corral.workflow.Demo;
+import org.corral.workflow.FolderMerge;
 import org.corral.workflow.FolderRun;
+import org.corral.workflow.Share;
 import org.corral.workflow.Jobs;
 
 /** The headless command line: {@code corral <job> [--option value ...]}. */
@@ -35,6 +37,8 @@ public final class Main {
 		  mask-boxes  images + boxes + model -> one mask per box (label TIFF, ROI zip, CSV, PNG)
 		  mask-image  images + model -> every object masked, no boxes needed (and --propose boxes)
 		  score       label images vs reference label images -> score table
+		  cluster-script  a mask-image / mask-boxes folder run as a SLURM job array + merge job
+		  merge       joins the tables of a folder run done in shares (--part) into the whole run's
 		  demo        the whole job on the bundled demo images
 		  benchmark   learn on half of a reference set, mask the other half, print figures
 		  tour        on a display: box ten demo objects in the ROI Manager, learn, mask, take screenshots
@@ -117,6 +121,8 @@ public final class Main {
 					  --adapt-steps N      steps of that learning (default: the rule above)
 					  --save-adapted FILE  also save the adapted model
 					  --margin PX          boxes may be up to PX too large on each side
+					  --part K/N           only share K of N of the images (sorted by name, every N-th from
+					                       the K-th); adaptation then learns from that share's boxes only
 					  --seed S, --band W, --all-boxed, --threads N   as for learn
 					""", Adaptation.MIN_STEPS, Adaptation.MAX_STEPS, 100 * SupervisionSettings.DEFAULT_FILL_MAX).replace("%%", "%"));
 				Args a = new Args(job, argv, 1, Set.of("no-adapt", "partial", "all-boxed"));
@@ -125,13 +131,14 @@ public final class Main {
 				boolean adapt = !a.has("no-adapt");
 				int steps = a.integer("adapt-steps", 0, 1, 1_000_000);
 				Path save = a.path("save-adapted", false);
+				Share share = Share.parse(a.str("part", null));
 				LearnSettings s = settings(a);
 				a.checkAllUsed();
 				if (!adapt && model == null) throw new CorralException("mask-boxes: --no-adapt needs --model FILE");
 				Map<Path, List<Box>> boxed = BoxedImages.find(images, boxes);
 				if (boxed.isEmpty()) throw new CorralException("No boxes found for the images in " + images);
 				AtomicBoolean stop = cancelOnInterrupt();
-				return report(Jobs.maskBoxes(boxed, boxes, model, new Jobs.AdaptPlan(adapt, steps, save, s), out, stop::get, printer(stop), System.out::println));
+				return report(Jobs.maskBoxes(boxed, boxes, model, new Jobs.AdaptPlan(adapt, steps, save, s), share, out, stop::get, printer(stop), System.out::println));
 			}
 			case "mask-image" -> {
 				if (help) return print("""
@@ -143,21 +150,80 @@ public final class Main {
 					  --object-size PX  typical object side in these images (default: measured in a first pass)
 					  --propose         also write the objects as boxes: OUT/corral-proposed-boxes.csv (learner's
 					                    form) and OUT/NAME.proposed-boxes.zip, to correct and learn again
+					  --part K/N        only share K of N of the images (sorted by name, every N-th from the K-th);
+					                    folder-level files get the share's name (corral-failures.part-K-of-N.csv),
+					                    and corral merge joins them; cluster-script writes the whole SLURM job
+					  OUT/corral-objects.csv: every image's objects under one header (also written by merge)
 					""");
 				Args a = new Args(job, argv, 1, Set.of("propose"));
 				threads(a);
 				Path images = a.path("images", true), model = a.path("model", true), out = a.path("out", true);
 				double size = a.number("object-size", 0, 0, 1e6);
 				boolean propose = a.has("propose");
+				Share share = Share.parse(a.str("part", null));
 				a.checkAllUsed();
 				List<Path> files = BoxedImages.images(images);
 				if (files.isEmpty()) throw new CorralException("No images in " + images);
 				AtomicBoolean stop = cancelOnInterrupt();
 				FolderRun.Report rep;
 				try (ModelRunner m = ModelRunner.open(model)) {
-					rep = Jobs.maskImages(files, m, out, size, propose, stop::get, System.out::println);
+					rep = Jobs.maskImages(files, share, m, out, size, propose, stop::get, System.out::println);
 				}
 				return report(rep);
+			}
+			case "merge" -> {
+				if (help) return print("""
+					corral merge --out DIR [--images DIR [--job mask-image|mask-boxes] [--boxes FILE.csv]]
+					  after a folder run in shares (--part K/N): joins the shares' failure lists and proposed
+					  boxes into OUT/corral-failures.csv and OUT/corral-proposed-boxes.csv, and writes
+					  OUT/corral-objects.csv (every image's objects, image name first). With --images, images
+					  neither done nor failed are listed as not run yet (for mask-boxes, images with boxes).
+					  Exit code 3 when an image failed or was not run.
+					""");
+				Args a = new Args(job, argv, 1, Set.of());
+				Path out = a.path("out", true), images = a.path("images", false), boxes = a.path("boxes", false);
+				String kind = a.str("job", "mask-image");
+				a.checkAllUsed();
+				if (!org.corral.cluster.SlurmScript.JOBS.contains(kind)) throw new CorralException("merge: --job must be mask-image or mask-boxes, got '" + kind + "'");
+				List<Path> expected = images == null ? null
+					: kind.equals("mask-boxes") ? List.copyOf(BoxedImages.find(images, boxes).keySet()) : BoxedImages.images(images);
+				FolderMerge.Report r = FolderMerge.merge(out, expected);
+				System.out.println(r.summary());
+				return r.complete() ? 0 : 3;
+			}
+			case "cluster-script" -> {
+				if (help) return print("""
+					corral cluster-script --parts N [--time T] [--mem M] [--partition P] [--threads C] [--launcher CMD] -- JOB
+					  writes a SLURM job array for a folder run, JOB being a mask-image or mask-boxes command line
+					  (for example: -- mask-image --images DIR --model FILE --out DIR): task i runs share i+1 of N
+					  (--part), then a merge job (corral merge) joins the shares' tables. The scripts go to
+					  OUT/corral-slurm/ (array.sbatch, merge.sbatch, logs/); the sbatch command is printed, not run.
+					  --parts N      shares = array tasks (required)
+					  --time T       time limit per task (default 01:00:00)
+					  --mem M        memory per task (default 4G; Java gets 60 %, the rest is for the engine)
+					  --partition P  partition (default: the cluster's default)
+					  --threads C    cores per task (default 2)
+					  --launcher CMD the command that runs Corral on the nodes (default: this ./corral)
+					  Same model, same images, same --threads: the merged outputs are byte for byte those of one
+					  run of the whole folder. mask-boxes adapts per share unless --no-adapt is given.
+					""");
+				int dash = List.of(argv).indexOf("--");
+				if (dash < 0) throw new CorralException("cluster-script: give the folder job after --, for example: -- mask-image --images DIR --model FILE --out DIR");
+				String[] own = java.util.Arrays.copyOfRange(argv, 0, dash);
+				List<String> jobArgs = List.of(argv).subList(dash + 1, argv.length);
+				Args a = new Args(job, own, 1, Set.of());
+				int parts = a.integer("parts", 0, 1, 100_000);
+				if (parts == 0) throw new CorralException("cluster-script: --parts N is required");
+				String launcher = a.str("launcher", null);
+				var settings = new org.corral.cluster.SlurmScript.Settings(jobArgs, parts, a.str("time", "01:00:00"), a.str("mem", "4G"), a.str("partition", null),
+					a.integer("threads", 2, 1, 4096), launcher == null ? org.corral.cluster.SlurmScript.defaultLauncher() : List.of(launcher), Path.of(""));
+				a.checkAllUsed();
+				var sc = org.corral.cluster.SlurmScript.write(settings);
+				System.out.println("wrote " + sc.array() + " (" + parts + " array tasks) and " + sc.merge() + "; logs go to " + sc.logs());
+				if (jobArgs.get(0).equals("mask-boxes") && !jobArgs.contains("--no-adapt"))
+					System.out.println("note: each share adapts the model to its own boxes; for one model across shares, adapt once (mask-boxes --save-adapted, or learn) and give --no-adapt");
+				System.out.println("submit with:\n  " + sc.submit());
+				return 0;
 			}
 			case "score" -> {
 				if (help) return print("""

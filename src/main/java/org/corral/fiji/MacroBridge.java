@@ -46,6 +46,7 @@ public final class MacroBridge implements PlugIn {
 		COMMANDS.put(PreviewBoxSupervision.TITLE, PreviewBoxSupervision.class);
 		COMMANDS.put(ScoreAgainstReference.TITLE, ScoreAgainstReference.class);
 		COMMANDS.put(ProcessFolder.TITLE, ProcessFolder.class);
+		COMMANDS.put(ClusterScript.TITLE, ClusterScript.class);
 	}
 
 	private static Context context;

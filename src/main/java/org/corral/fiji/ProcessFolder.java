@@ -9,6 +9,7 @@ import org.corral.train.LearnSettings;
 import org.corral.workflow.BoxedImages;
 import org.corral.workflow.FolderRun;
 import org.corral.workflow.Jobs;
+import org.corral.workflow.Share;
 import org.scijava.ItemIO;
 import org.scijava.command.Command;
 import org.scijava.plugin.Parameter;
@@ -43,6 +44,9 @@ public class ProcessFolder implements Command {
 	@Parameter(label = "First learn from the boxes being masked (for 'boxes')", persist = false)
 	boolean adapt = true;
 
+	@Parameter(label = "Share K/N of the images (empty: all)", required = false, persist = false)
+	String part = "";
+
 	@Parameter(type = ItemIO.OUTPUT)
 	String summary;
 
@@ -50,14 +54,15 @@ public class ProcessFolder implements Command {
 	public void run() {
 		if (input == null || output == null || model == null) throw new CorralException("Choose the image folder, the output folder and the model file");
 		FolderRun.Report r;
+		Share share = Share.parse(part);
 		if (BOXES.equals(mode)) {
 			var boxed = BoxedImages.find(input.toPath(), table == null ? null : table.toPath());
 			if (boxed.isEmpty()) throw new CorralException("No boxes found for the images in " + input);
 			LearnSettings s = LearnFromBoxes.settings(SupervisionSettings.DEFAULT_BAND, 0, false);
-			r = Jobs.maskBoxes(boxed, table == null ? null : table.toPath(), model.toPath(), new Jobs.AdaptPlan(adapt, 0, null, s), output.toPath(),
+			r = Jobs.maskBoxes(boxed, table == null ? null : table.toPath(), model.toPath(), new Jobs.AdaptPlan(adapt, 0, null, s), share, output.toPath(),
 				ij.IJ::escapePressed, new ImageJProgress(false), ij.IJ::log);
 		} else try (ModelRunner m = ModelRunner.open(model.toPath())) {
-			r = Jobs.maskImages(BoxedImages.images(input.toPath()), m, output.toPath(), 0, false, ij.IJ::escapePressed, ij.IJ::log);
+			r = Jobs.maskImages(BoxedImages.images(input.toPath()), share, m, output.toPath(), 0, false, ij.IJ::escapePressed, ij.IJ::log);
 		}
 		summary = r.summary() + (r.failed().isEmpty() ? "" : ": " + r.failed());
 		ij.IJ.log("Corral: " + summary);

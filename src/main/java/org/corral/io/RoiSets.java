@@ -56,6 +56,9 @@ public final class RoiSets {
 		return rois;
 	}
 
+	/** The time stamp of every entry (2000-01-01 00:00, in no time zone): zips are compared byte for byte across runs and machines. */
+	static final java.time.LocalDateTime ENTRY_TIME = java.time.LocalDateTime.of(2000, 1, 1, 0, 0);
+
 	public static void writeZip(Path target, List<Roi> rois) {
 		AtomicFiles.write(target, out -> {
 			ZipOutputStream zos = new ZipOutputStream(out);
@@ -67,7 +70,9 @@ public final class RoiSets {
 				String name = r.getName();
 				while (used.contains(name)) name = name + "_";
 				used.add(name);
-				zos.putNextEntry(new ZipEntry(name + ".roi"));
+				ZipEntry e = new ZipEntry(name + ".roi");
+				e.setTimeLocal(ENTRY_TIME); // the same outlines give the same bytes, whenever and wherever they are written
+				zos.putNextEntry(e);
 				enc.write(r);
 				dos.flush();
 			}

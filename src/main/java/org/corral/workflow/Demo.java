@@ -29,7 +29,7 @@ public final class Demo {
 		}
 		Path labels = out.resolve("masks");
 		try (ModelRunner m = ModelRunner.open(model)) {
-			Jobs.maskBoxes(boxed, boxes, m, org.corral.instances.BoxMasks.Options.DEFAULTS.withMargin(s.margin), labels, null, log);
+			Jobs.maskBoxes(boxed, boxes, m, org.corral.instances.BoxMasks.Options.DEFAULTS.withMargin(s.margin), Share.ALL, labels, null, log);
 		}
 		log.accept("scores against the demo's reference masks:");
 		log.accept(Jobs.score(labels, reference, out.resolve("scores.csv")).strip());

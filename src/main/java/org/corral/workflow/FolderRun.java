@@ -44,6 +44,15 @@ public final class FolderRun {
 	 * the images, or when one of {@code otherInputs} (box file, ...) lies in it under an output's name.
 	 */
 	public static Report run(List<Path> images, Collection<Path> otherInputs, Path outDir, boolean resume, BooleanSupplier cancelled, Consumer<String> log, ImageJob job) {
+		return run(images, Share.ALL, otherInputs, outDir, resume, cancelled, log, job);
+	}
+
+	/**
+	 * As above for one share of a folder ({@code images} are the share's own): its failures go to
+	 * the share's own list ({@link Share#fileName}).
+	 */
+	public static Report run(List<Path> images, Share share, Collection<Path> otherInputs, Path outDir, boolean resume, BooleanSupplier cancelled, Consumer<String> log,
+		ImageJob job) {
 		Set<Path> folders = new LinkedHashSet<>();
 		for (Path p : images) folders.add(p.toAbsolutePath().normalize().getParent());
 		OutputNames.checkOutputFolder(outDir, folders, otherInputs);
@@ -71,7 +80,7 @@ public final class FolderRun {
 				fail(failed, log, img, e instanceof CorralException ? e.getMessage() : e.toString());
 			}
 		}
-		Path failures = outDir.resolve(OutputNames.FAILURES);
+		Path failures = outDir.resolve(share.fileName(OutputNames.FAILURES));
 		if (failed.isEmpty()) try {
 			Files.deleteIfExists(failures);
 		} catch (IOException e) {

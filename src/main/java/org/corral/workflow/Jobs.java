@@ -158,6 +158,18 @@ public final class Jobs {
 	 */
 	public static FolderRun.Report maskBoxes(Map<Path, List<Box>> boxed, Path boxFile, Path modelFile, AdaptPlan plan, Path outDir,
 		java.util.function.BooleanSupplier cancelled, Progress progress, Consumer<String> log) {
+		return maskBoxes(boxed, boxFile, modelFile, plan, Share.ALL, outDir, cancelled, progress, log);
+	}
+
+	/**
+	 * As above for one share of the images ({@link Share}): only its images are adapted to and masked,
+	 * and its run record and failure list carry the share's name; the whole folder's object table
+	 * ({@link FolderMerge}) is written by a run of the whole folder, or by the merge after the shares.
+	 */
+	public static FolderRun.Report maskBoxes(Map<Path, List<Box>> allBoxed, Path boxFile, Path modelFile, AdaptPlan plan, Share share, Path outDir,
+		java.util.function.BooleanSupplier cancelled, Progress progress, Consumer<String> log) {
+		Map<Path, List<Box>> boxed = new java.util.LinkedHashMap<>();
+		for (Path p : share.of(new ArrayList<>(allBoxed.keySet()))) boxed.put(p, allBoxed.get(p));
 		java.util.Set<Path> folders = new java.util.LinkedHashSet<>();
 		for (Path p : boxed.keySet()) folders.add(p.toAbsolutePath().normalize().getParent());
 		OutputNames.checkOutputFolder(outDir, folders, boxFile == null ? List.of() : List.of(boxFile));
@@ -188,8 +200,8 @@ public final class Jobs {
 				}
 				used = new ModelRunner(adapted.header(), adapted.net(), adapted.manager());
 			}
-			FolderRun.Report r = maskBoxes(boxed, boxFile, used, BoxMasks.Options.DEFAULTS.withMargin(plan.settings().margin), outDir, cancelled, log);
-			AtomicFiles.writeString(outDir.resolve(OutputNames.RUN_RECORD), record.json());
+			FolderRun.Report r = maskBoxes(allBoxed, boxFile, used, BoxMasks.Options.DEFAULTS.withMargin(plan.settings().margin), share, outDir, cancelled, log);
+			AtomicFiles.writeString(outDir.resolve(share.fileName(OutputNames.RUN_RECORD)), record.json());
 			if (adapted != null) adapted.close();
 			return r;
 		} finally {
@@ -198,16 +210,19 @@ public final class Jobs {
 	}
 
 	/** Masks the boxes of every image with a model as it is (no adaptation); see the method above. */
-	public static FolderRun.Report maskBoxes(Map<Path, List<Box>> boxed, Path boxFile, ModelRunner m, BoxMasks.Options options, Path outDir,
+	public static FolderRun.Report maskBoxes(Map<Path, List<Box>> boxed, Path boxFile, ModelRunner m, BoxMasks.Options options, Share share, Path outDir,
 		java.util.function.BooleanSupplier cancelled, Consumer<String> log) {
-		return FolderRun.run(new ArrayList<>(boxed.keySet()), boxFile == null ? List.of() : List.of(boxFile), outDir, true, cancelled, log, (img, b) -> {
-			long t0 = System.nanoTime();
-			ImagePlus imp = ImageFiles.open(img);
-			List<Box> boxes = boxed.get(img);
-			BoxMaskOutcome o = maskBoxes(imp, boxes, m, options);
-			writeOutputs(outDir, b, imp, o.labels(), boxes, o.fits(), o.shown());
-			return String.format(Locale.ROOT, "%s: %d boxes masked in %.2f s", img.getFileName(), boxes.size(), (System.nanoTime() - t0) / 1e9);
-		});
+		FolderRun.Report r = FolderRun.run(share.of(new ArrayList<>(boxed.keySet())), share, boxFile == null ? List.of() : List.of(boxFile), outDir, true, cancelled, log,
+			(img, b) -> {
+				long t0 = System.nanoTime();
+				ImagePlus imp = ImageFiles.open(img);
+				List<Box> boxes = boxed.get(img);
+				BoxMaskOutcome o = maskBoxes(imp, boxes, m, options);
+				writeOutputs(outDir, b, imp, o.labels(), boxes, o.fits(), o.shown());
+				return String.format(Locale.ROOT, "%s: %d boxes masked in %.2f s", img.getFileName(), boxes.size(), (System.nanoTime() - t0) / 1e9);
+			});
+		if (share.isAll()) FolderMerge.writeObjects(outDir);
+		return r;
 	}
 
 	/** What model masked the boxes of a folder run, for {@code corral-run.json}. */
@@ -338,9 +353,16 @@ public final class Jobs {
 	 */
 	public static FolderRun.Report maskImages(List<Path> images, ModelRunner model, Path outDir, double objectSize, boolean propose,
 		java.util.function.BooleanSupplier cancelled, Consumer<String> log) {
+		return maskImages(images, Share.ALL, model, outDir, objectSize, propose, cancelled, log);
+	}
+
+	/** As above for one share of the images ({@link Share}); see {@link #maskBoxes(Map, Path, Path, AdaptPlan, Share, Path, java.util.function.BooleanSupplier, Progress, Consumer)}. */
+	public static FolderRun.Report maskImages(List<Path> allImages, Share share, ModelRunner model, Path outDir, double objectSize, boolean propose,
+		java.util.function.BooleanSupplier cancelled, Consumer<String> log) {
+		List<Path> images = share.of(allImages);
 		StringBuilder proposals = new StringBuilder("image,x,y,width,height\n");
 		// proposing rebuilds the box file from every image, so it processes them all again
-		FolderRun.Report r = FolderRun.run(images, List.of(), outDir, !propose, cancelled, log, (img, base) -> {
+		FolderRun.Report r = FolderRun.run(images, share, List.of(), outDir, !propose, cancelled, log, (img, base) -> {
 			long t0 = System.nanoTime();
 			ImagePlus imp = ImageFiles.open(img);
 			WholeImageOutcome o = maskWhole(imp, model, objectSize);
@@ -355,7 +377,8 @@ public final class Jobs {
 			ImageFiles.saveTiff(ImageFiles.labelImage(base, o.labels(), imp.getWidth(), imp.getHeight(), imp.getCalibration()), OutputNames.labels(outDir, base));
 			return String.format(Locale.ROOT, "%s: %d objects in %.2f s", img.getFileName(), o.count(), (System.nanoTime() - t0) / 1e9);
 		});
-		if (propose) AtomicFiles.writeString(outDir.resolve(OutputNames.PROPOSED_CSV), proposals.toString());
+		if (propose) AtomicFiles.writeString(outDir.resolve(share.fileName(OutputNames.PROPOSED_CSV)), proposals.toString());
+		if (share.isAll()) FolderMerge.writeObjects(outDir);
 		return r;
 	}
 

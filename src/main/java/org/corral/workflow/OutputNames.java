@@ -21,7 +21,11 @@ public final class OutputNames {
 	public static final String LABELS = ".labels.tif", OUTLINES = ".outlines.zip", TABLE = ".objects.csv", OVERLAY = ".overlay.png",
 		PROPOSED_BOXES = ".proposed-boxes.zip";
 	/** Folder-level outputs. */
-	public static final String PROPOSED_CSV = "corral-proposed-boxes.csv", FAILURES = "corral-failures.csv", RUN_RECORD = "corral-run.json";
+	public static final String PROPOSED_CSV = "corral-proposed-boxes.csv", FAILURES = "corral-failures.csv", RUN_RECORD = "corral-run.json",
+		OBJECTS = "corral-objects.csv";
+	/** Folder-level files of one share of a folder run ({@link Share#fileName}), and the cluster scripts' folder. */
+	static final java.util.regex.Pattern SHARE_FILE = java.util.regex.Pattern.compile("corral-(failures|proposed-boxes|run)\\.part-\\d+-of-\\d+\\.(csv|json)");
+	public static final String SCRIPTS = "corral-slurm";
 
 	private static final List<String> PER_IMAGE = List.of(LABELS, OUTLINES, TABLE, OVERLAY, PROPOSED_BOXES);
 
@@ -49,7 +53,7 @@ public final class OutputNames {
 	public static boolean isOutput(Path p) {
 		String n = p.getFileName().toString().toLowerCase(Locale.ROOT);
 		for (String s : PER_IMAGE) if (n.endsWith(s)) return true;
-		return n.equals(PROPOSED_CSV) || n.equals(FAILURES) || n.equals(RUN_RECORD);
+		return n.equals(PROPOSED_CSV) || n.equals(FAILURES) || n.equals(RUN_RECORD) || n.equals(OBJECTS) || SHARE_FILE.matcher(n).matches();
 	}
 
 	/**

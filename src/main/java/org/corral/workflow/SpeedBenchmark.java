@@ -164,7 +164,7 @@ public final class SpeedBenchmark {
 				Jobs.maskImages(files, model, tmp.resolve("mask-image"), 0, false, null, l -> {});
 				double e1 = (System.nanoTime() - t) / 1e9;
 				t = System.nanoTime();
-				Jobs.maskBoxes(sorted(boxed), boxFile, model, BoxMasks.Options.DEFAULTS, tmp.resolve("mask-boxes"), null, l -> {});
+				Jobs.maskBoxes(sorted(boxed), boxFile, model, BoxMasks.Options.DEFAULTS, Share.ALL, tmp.resolve("mask-boxes"), null, l -> {});
 				double e2 = (System.nanoTime() - t) / 1e9;
 				out.append(String.format(Locale.ROOT, "end to end: mask-image %.3f MP/s (%.2f s); mask-boxes without adaptation %.3f MP/s (%.2f s)%n", read.megapixels / e1, e1,
 					read.megapixels / e2, e2));

@@ -66,6 +66,13 @@ class MacrosTest {
 		runMacro("learn_folder_then_process.ijm", demo.resolve("images") + "|" + demo.resolve("boxes.csv") + "|" + model + "|" + demo.resolve("images") + "|" + out);
 		assertTrue(MacroBridge.last("summary").startsWith("0 written, 4 skipped"), MacroBridge.last("summary"));
 
+		// one share of the folder, as a cluster's array task runs it
+		Interpreter in = new Interpreter();
+		in.run("run(\"Corral Process Folder\", \"input=[" + demo.resolve("images") + "] output=[" + dir.resolve("share-2-of-3") + "] model=[" + model
+			+ "] mode=[whole images] part=2/3\");", "");
+		assertTrue(MacroBridge.last("summary").startsWith("1 written"), MacroBridge.last("summary"));
+		assertTrue(Files.isRegularFile(dir.resolve("share-2-of-3/seedcoat-02.labels.tif")), "share 2 of 3 is the second image by name");
+
 		runMacro("score_folder.ijm", out + "|" + demo.resolve("reference"));
 		ResultsTable rt = ResultsTable.getResultsTable("Corral folder scores");
 		assertEquals(4, rt.size());
@@ -73,6 +80,19 @@ class MacrosTest {
 		int[] lab = ImageFiles.readLabels(out.resolve("seedcoat-03.labels.tif"), null);
 		int[] ref = ImageFiles.readLabels(demo.resolve("reference").resolve("seedcoat-03.tif"), null);
 		assertEquals(Scores.compare(lab, ref).objectDice(), rt.getValue("object_dice", 2), 1e-9, "the table holds the core's score");
+	}
+
+	@Test
+	void clusterScriptFromAMacro() throws Exception {
+		Path demo = ReferenceData.demo().toAbsolutePath(), out = dir.resolve("cluster-out");
+		runMacro("cluster_script.ijm", demo.resolve("images") + "|" + dir.resolve("some-model.zip") + "|" + out + "|3");
+		String submit = MacroBridge.last("summary");
+		assertTrue(submit.startsWith("jid=$(sbatch --parsable ") && submit.contains("--dependency=afterany:"), submit);
+		String array = Files.readString(out.resolve("corral-slurm/array.sbatch"));
+		for (String line : List.of("#SBATCH --array=0-2", "#SBATCH --cpus-per-task=2", "#SBATCH --mem=4G", "#SBATCH --time=00:30:00", "mask-image --images " + demo.resolve("images"),
+			"--threads 2 --part \"$((SLURM_ARRAY_TASK_ID + 1))/3\""))
+			assertTrue(array.contains(line), "array.sbatch lacks '" + line + "':\n" + array);
+		assertTrue(Files.readString(out.resolve("corral-slurm/merge.sbatch")).contains("merge --out " + out), "the merge job merges the same folder");
 	}
 
 	@Test

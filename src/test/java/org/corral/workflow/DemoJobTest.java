@@ -81,7 +81,7 @@ class DemoJobTest {
 			Path model = out.resolve("m" + i + ".zip");
 			Jobs.learn(boxed, null, s, model, org.corral.train.Progress.silent(), n -> {}).close();
 			try (var m = org.corral.predict.ModelRunner.open(model)) {
-				Jobs.maskBoxes(boxed, null, m, org.corral.instances.BoxMasks.Options.DEFAULTS, out.resolve("r" + i), null, x -> {});
+				Jobs.maskBoxes(boxed, null, m, org.corral.instances.BoxMasks.Options.DEFAULTS, Share.ALL, out.resolve("r" + i), null, x -> {});
 			}
 			runs[i] = ImageFiles.readLabels(out.resolve("r" + i).resolve("seedcoat-01.labels.tif"), null);
 			models[i] = parameters(model);

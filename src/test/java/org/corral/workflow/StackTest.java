@@ -50,7 +50,7 @@ class StackTest {
 		s.minutes = 0;
 		Jobs.learn(boxed, null, s, dir.resolve("m.zip"), Progress.silent(), n -> {}).close();
 		try (ModelRunner m = ModelRunner.open(dir.resolve("m.zip"))) {
-			Jobs.maskBoxes(boxed, null, m, org.corral.instances.BoxMasks.Options.DEFAULTS, dir.resolve("out"), null, x -> {});
+			Jobs.maskBoxes(boxed, null, m, org.corral.instances.BoxMasks.Options.DEFAULTS, Share.ALL, dir.resolve("out"), null, x -> {});
 		}
 		ImagePlus labels = ImageFiles.open(dir.resolve("out/movie.labels.tif"));
 		assertEquals(3, labels.getStackSize());
