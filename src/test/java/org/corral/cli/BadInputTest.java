@@ -136,7 +136,7 @@ class BadInputTest {
 			Path in = folderWith(w, "g.tif", new ImagePlus("g", new FloatProcessor(40, 30)));
 			write(in.resolve("notes.txt"), "hello");
 			return maskImage(in, model, w);
-		}, null, w -> assertEquals(List.of("g.labels.tif", "g.objects.csv", "g.outlines.zip", "g.overlay.png"), list(w.resolve("out")), "no failure file either")));
+		}, null, w -> assertEquals(List.of("corral-objects.csv", "g.labels.tif", "g.objects.csv", "g.outlines.zip", "g.overlay.png"), list(w.resolve("out")), "the folder table, no failure file")));
 		c.add(new Case("empty image folder", w -> maskImage(Files.createDirectories(w.resolve("in")), model, w), "No images", null));
 		// boxes
 		c.add(new Case("no boxes at all: learning refuses", w -> learn(demoImages, write(w.resolve("b.csv"), "image,x,y,width,height\n"), w), "No boxes",

@@ -143,6 +143,23 @@ final class DataSafetyCases {
 			"--object-size must be a number", null));
 		c.add(new Case("fill bound above 1", w -> new String[] {"learn", "--images", "x", "--model", "y", "--fill-max", "1.5"}, "--fill-max must be a number from 0 to 1", null));
 		c.add(new Case("a seed that is not whole", w -> new String[] {"learn", "--images", "x", "--model", "y", "--seed", "1.5"}, "--seed must be a whole number", null));
+		// folder runs in shares, and the cluster scripts
+		c.add(new Case("a share that does not exist", w -> new String[] {"mask-image", "--images", "x", "--model", "y", "--out", "z", "--part", "4/3"},
+			"Share 4/3 does not exist", null));
+		c.add(new Case("cluster-script without the folder job", w -> new String[] {"cluster-script", "--parts", "3"}, "give the folder job after --", null));
+		c.add(new Case("cluster-script for a job that cannot run in shares", w -> new String[] {"cluster-script", "--parts", "3", "--", "learn", "--images", "x"},
+			"runs mask-image or mask-boxes", null));
+		c.add(new Case("cluster-script with --part in the job", w -> new String[] {"cluster-script", "--parts", "3", "--", "mask-image", "--images", "x", "--out", "z",
+			"--part", "1/3"}, "sets --part of each task itself", null));
+		c.add(new Case("cluster-script with a memory typo", w -> new String[] {"cluster-script", "--parts", "3", "--mem", "4Q", "--", "mask-image", "--images", "x", "--out",
+			"z"}, "--mem '4Q' is not a size", null));
+		c.add(new Case("cluster-script writes the array and the merge job, submits nothing", w -> new String[] {"cluster-script", "--parts", "4", "--partition", "short",
+			"--", "mask-image", "--images", w.resolve("in").toString(), "--model", "m.zip", "--out", w.resolve("cl").toString()}, null, w -> {
+				String array = Files.readString(w.resolve("cl/corral-slurm/array.sbatch"));
+				assertTrue(array.contains("#SBATCH --array=0-3") && array.contains("#SBATCH --partition=short") && array.contains("--part \"$((SLURM_ARRAY_TASK_ID + 1))/4\""), array);
+				assertTrue(Files.readString(w.resolve("cl/corral-slurm/merge.sbatch")).contains(" merge --out " + w.resolve("cl")));
+			}));
+		c.add(new Case("merge of a folder that does not exist", w -> new String[] {"merge", "--out", w.resolve("nothing-here").toString()}, "No output folder", null));
 		// folder runs survive any per-image failure
 		c.add(Case.direct("engine error and out of memory on two images: both listed, the others written, run goes on", null, w -> {
 			List<Path> imgs = new ArrayList<>();
