@@ -4,11 +4,47 @@ package org.corral.boxes;
  * One rectangle around one object, in ImageJ's pixel convention: (x, y) is the top-left pixel,
  * width and height count pixels. {@code index} is the 1-based order of the box within its image
  * (it becomes the label value of its mask); {@code slice} is the 1-based stack position, 0 = any.
+ * {@code mask} is null for a box drawn as a rectangle (the tight-box prior applies); for an object
+ * whose outline is known exactly (a drawn or corrected outline) it holds width x height values,
+ * row by row, 1 = object and 0 = background: the rectangle is then the outline's bounding box.
  */
-public record Box(int index, int x, int y, int width, int height, int slice, String name) {
+public record Box(int index, int x, int y, int width, int height, int slice, String name, byte[] mask) {
+	public Box {
+		if (mask != null && mask.length != width * height)
+			throw new IllegalArgumentException("mask of " + mask.length + " values for a " + width + "x" + height + " box");
+	}
+
+	public Box(int index, int x, int y, int width, int height, int slice, String name) {
+		this(index, x, y, width, height, slice, name, null);
+	}
 
 	public Box(int index, int x, int y, int width, int height) {
 		this(index, x, y, width, height, 0, "box-" + index);
+	}
+
+	/** True for an exactly outlined object (a correction), false for a rectangle. */
+	public boolean isExact() {
+		return mask != null;
+	}
+
+	/** 1 when pixel (px, py) of the image lies in this exact object (false outside the box, and for rectangles). */
+	public boolean inMask(int px, int py) {
+		int lx = px - x, ly = py - y;
+		return mask != null && lx >= 0 && ly >= 0 && lx < width && ly < height && mask[ly * width + lx] != 0;
+	}
+
+	/** The same box under another index (its order in a list). */
+	public Box withIndex(int i) {
+		return new Box(i, x, y, width, height, slice, name, mask);
+	}
+
+	/** The part of the mask inside the rectangle (nx, ny, nw, nh) of the image; null for a rectangle. */
+	private byte[] maskIn(int nx, int ny, int nw, int nh) {
+		if (mask == null) return null;
+		byte[] m = new byte[nw * nh];
+		for (int yy = 0; yy < nh; yy++)
+			for (int xx = 0; xx < nw; xx++) m[yy * nw + xx] = (byte) (inMask(nx + xx, ny + yy) ? 1 : 0);
+		return m;
 	}
 
 	public int x1() {
@@ -36,7 +72,8 @@ public record Box(int index, int x, int y, int width, int height, int slice, Str
 		int nx = Math.max(0, x), ny = Math.max(0, y);
 		int nx1 = Math.min(imageWidth, x1()), ny1 = Math.min(imageHeight, y1());
 		if (nx1 <= nx || ny1 <= ny) return null;
-		return new Box(index, nx, ny, nx1 - nx, ny1 - ny, slice, name);
+		if (nx == x && ny == y && nx1 == x1() && ny1 == y1()) return this;
+		return new Box(index, nx, ny, nx1 - nx, ny1 - ny, slice, name, maskIn(nx, ny, nx1 - nx, ny1 - ny));
 	}
 
 	/** True when the box touches the image border (the object may be cut by it). */
@@ -47,10 +84,18 @@ public record Box(int index, int x, int y, int width, int height, int slice, Str
 	public Box scaled(double s) {
 		int nx = (int) Math.floor(x * s), ny = (int) Math.floor(y * s);
 		int nx1 = (int) Math.ceil(x1() * s), ny1 = (int) Math.ceil(y1() * s);
-		return new Box(index, nx, ny, Math.max(1, nx1 - nx), Math.max(1, ny1 - ny), slice, name);
+		int nw = Math.max(1, nx1 - nx), nh = Math.max(1, ny1 - ny);
+		byte[] m = null;
+		if (mask != null) { // nearest neighbour: the pixel whose centre maps to the new pixel's centre
+			m = new byte[nw * nh];
+			for (int yy = 0; yy < nh; yy++)
+				for (int xx = 0; xx < nw; xx++)
+					m[yy * nw + xx] = (byte) (inMask((int) Math.floor((nx + xx + 0.5) / s), (int) Math.floor((ny + yy + 0.5) / s)) ? 1 : 0);
+		}
+		return new Box(index, nx, ny, nw, nh, slice, name, m);
 	}
 
 	public Box grown(int by) {
-		return new Box(index, x - by, y - by, width + 2 * by, height + 2 * by, slice, name);
+		return new Box(index, x - by, y - by, width + 2 * by, height + 2 * by, slice, name, maskIn(x - by, y - by, width + 2 * by, height + 2 * by));
 	}
 }

@@ -36,7 +36,8 @@ public final class BoxFiles {
 		}
 		if (lines.isEmpty()) throw new CorralException("Box file " + file + " is empty (expected a header row image,x,y,width,height)");
 		String[] header = split(stripBom(lines.get(0)));
-		int ci = -1, cx = -1, cy = -1, cw = -1, ch = -1, cs = -1;
+		int ci = -1, cx = -1, cy = -1, cw = -1, ch = -1, cs = -1, cm = -1;
+		Map<Path, ij.process.ImageProcessor[]> masks = new java.util.HashMap<>();
 		for (int i = 0; i < header.length; i++) {
 			switch (header[i].trim().toLowerCase(Locale.ROOT)) {
 				case "image" -> ci = i;
@@ -45,6 +46,7 @@ public final class BoxFiles {
 				case "width" -> cw = i;
 				case "height" -> ch = i;
 				case "slice" -> cs = i;
+				case "mask" -> cm = i;
 				default -> { }
 			}
 		}
@@ -72,18 +74,52 @@ public final class BoxFiles {
 			if (w <= 0 || h <= 0) throw new CorralException(where + ": box width and height must be positive, found " + w + " x " + h);
 			List<Box> list = out.computeIfAbsent(image, k -> new ArrayList<>());
 			int index = list.size() + 1;
-			list.add(new Box(index, x, y, w, h, s, "box-" + index));
+			byte[] m = cm >= 0 && cm < f.length && !f[cm].isBlank() ? objectIn(masks, file, f[cm].trim(), x, y, w, h, s, where) : null;
+			list.add(new Box(index, x, y, w, h, s, (m != null ? "outline-" : "box-") + index, m));
 		}
 		return out;
 	}
 
-	/** Rectangles of an ImageJ ROI-set zip (or a single .roi file); other ROI shapes are refused. */
+	/**
+	 * An exact object from a mask image named in the {@code mask} column (relative to the box file's
+	 * folder; binary or label image the size of the image): its pixels inside the box that carry the
+	 * box's most frequent non-zero value.
+	 */
+	private static byte[] objectIn(Map<Path, ij.process.ImageProcessor[]> cache, Path csv, String name, int x, int y, int w, int h, int slice, String where) {
+		Path p = csv.toAbsolutePath().getParent().resolve(name);
+		ij.process.ImageProcessor[] planes = cache.computeIfAbsent(p, q -> {
+			if (!Files.isRegularFile(q)) throw new CorralException(where + ": mask image " + q + " does not exist");
+			ij.ImagePlus imp = ij.IJ.openImage(q.toString());
+			if (imp == null) throw new CorralException(where + ": cannot read mask image " + q);
+			ij.process.ImageProcessor[] out = new ij.process.ImageProcessor[imp.getStackSize()];
+			for (int i = 0; i < out.length; i++) out[i] = imp.getStack().getProcessor(i + 1);
+			return out;
+		});
+		ij.process.ImageProcessor ip = planes[slice > 0 && slice <= planes.length ? slice - 1 : 0];
+		java.util.Map<Float, Integer> count = new java.util.HashMap<>();
+		for (int yy = Math.max(0, y); yy < Math.min(ip.getHeight(), y + h); yy++)
+			for (int xx = Math.max(0, x); xx < Math.min(ip.getWidth(), x + w); xx++) {
+				float v = ip.getf(xx, yy);
+				if (v != 0) count.merge(v, 1, Integer::sum);
+			}
+		if (count.isEmpty()) throw new CorralException(where + ": the mask image " + name + " has no object inside this box");
+		float label = java.util.Collections.max(count.entrySet(), java.util.Map.Entry.comparingByValue()).getKey();
+		byte[] m = new byte[w * h];
+		for (int yy = 0; yy < h; yy++)
+			for (int xx = 0; xx < w; xx++) {
+				int ix = x + xx, iy = y + yy;
+				if (ix >= 0 && iy >= 0 && ix < ip.getWidth() && iy < ip.getHeight() && ip.getf(ix, iy) == label) m[yy * w + xx] = 1;
+			}
+		return m;
+	}
+
+	/** Boxes of an ImageJ ROI-set zip (or a single .roi file): rectangles, and outlines as exact objects ({@link RoiBoxes}). */
 	public static List<Box> readRoiZip(Path file) {
-		List<Box> boxes = new ArrayList<>();
+		List<Roi> boxes = new ArrayList<>();
 		try (InputStream in = Files.newInputStream(file)) {
 			if (file.toString().toLowerCase(Locale.ROOT).endsWith(".roi")) {
 				addRoi(boxes, new RoiDecoder(in.readAllBytes(), file.getFileName().toString()).getRoi(), file.toString());
-				return boxes;
+				return RoiBoxes.of(boxes.toArray(new Roi[0]), true).boxes();
 			}
 			try (ZipInputStream zin = new ZipInputStream(in)) {
 				ZipEntry e;
@@ -98,18 +134,14 @@ public final class BoxFiles {
 		} catch (IOException e) {
 			throw new CorralException("Cannot read ROI set " + file + ": " + e.getMessage(), e);
 		}
-		return boxes;
+		return RoiBoxes.of(boxes.toArray(new Roi[0]), true).boxes();
 	}
 
-	private static void addRoi(List<Box> boxes, Roi roi, String where) {
+	private static void addRoi(List<Roi> rois, Roi roi, String where) {
 		if (roi == null) throw new CorralException("Unreadable ROI in " + where);
-		if (roi.getType() != Roi.RECTANGLE)
-			throw new CorralException("ROI '" + roi.getName() + "' in " + where + " is a " + roi.getTypeAsString() + ", not a rectangle");
-		java.awt.Rectangle r = roi.getBounds();
-		int index = boxes.size() + 1;
-		int slice = Math.max(roi.getPosition(), Math.max(roi.getTPosition(), roi.getZPosition()));
-		String name = roi.getName() != null ? roi.getName() : "box-" + index;
-		boxes.add(new Box(index, r.x, r.y, r.width, r.height, slice, name));
+		if (roi.getName() != null && roi.getName().toLowerCase(Locale.ROOT).startsWith("region"))
+			throw new CorralException("ROI '" + roi.getName() + "' in " + where + ": an annotated region is read from the ROI Manager or the image's overlay, not from ROI-set files");
+		rois.add(roi);
 	}
 
 	private static int integer(String s, String column, String where) {

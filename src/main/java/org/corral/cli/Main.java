@@ -250,10 +250,22 @@ public final class Main {
 			case "benchmark" -> {
 				if (help) return print("corral benchmark --data DIR [--data2 DIR] [--grow 0,2,4,8] [learn options]\n  each DIR is a reference set (images/, labels/, boxes.csv): learn on the first 5 images, mask the other 5;\n  prints the figures of Corral, the box itself and Otsu in the box; with boxes (tight) and without (whole image).\n  --grow LIST  instead: per-object Dice with every box enlarged by each amount, without and with --margin\n"
 					+ "corral benchmark --learn A --mask B[,C...] [--cache DIR]\n  the cross-collection protocol (README)\n"
+					+ "corral benchmark --corrections SET [--rounds N] [--fraction F]\n  outlines as corrections: per round, the worst-masked F (default 0.1) of the learning images' objects\n  get their reference outlines and learning starts again; per-object Dice of corrected, neighbours, held-out\n"
 					+ "corral benchmark --speed [--images DIR [--boxes FILE.csv]] [--model FILE] [--steps N]\n  where the time goes: learning s/step (" + SPEED_STEPS
 					+ " steps unless --model), then each stage of masking the folder (default test-images/) in MP/s,\n  the network's GFLOP/s against a matrix product measured in the same run, end-to-end rates and peak memory\n");
 				Args a = new Args(job, argv, 1, Set.of("partial", "all-boxed", "speed"));
 				threads(a);
+				Path corrections = a.path("corrections", false);
+				if (corrections != null) { // outlines as corrections, round by round
+					int rounds = a.integer("rounds", 2, 1, 100);
+					double fraction = a.number("fraction", 0.1, 0.001, 1);
+					LearnSettings s = settings(a);
+					a.checkAllUsed();
+					System.out.printf(Locale.ROOT, "%s: learn on the first 5 images; each round outlines the worst-masked %.0f %% of their objects and learns again%n",
+						corrections, 100 * fraction);
+					org.corral.workflow.CorrectionRounds.run(corrections, 5, rounds, fraction, s, System.out::println);
+					return 0;
+				}
 				if (a.has("speed")) { // where the time goes, stage by stage
 					Path images = a.path("images", false);
 					Path boxes = a.path("boxes", false);

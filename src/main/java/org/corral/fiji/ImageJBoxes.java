@@ -38,31 +38,21 @@ public final class ImageJBoxes {
 			from = "the overlay of " + imp.getTitle();
 		}
 		if (rois == null) throw new CorralException("No boxes on " + imp.getTitle() + ": draw rectangles and add them to the ROI Manager (key t), or to the image's overlay");
-		List<Box> boxes = new ArrayList<>();
+		org.corral.boxes.RoiBoxes.Read read = org.corral.boxes.RoiBoxes.of(rois, imp.getStackSize() > 1);
+		List<Box> boxes = read.boxes();
 		byte[] region = null;
-		for (Roi r : rois) {
-			String name = r.getName() == null ? "" : r.getName().toLowerCase(Locale.ROOT);
-			if (name.startsWith("mask-") || name.startsWith("object-")) continue;
-			if (r instanceof ij.gui.ImageRoi || !r.isArea()) continue; // pictures, lines and points are not boxes
-			if (name.startsWith("region") && r.isArea()) {
-				if (region == null) region = new byte[imp.getWidth() * imp.getHeight()];
-				paint(region, r, imp.getWidth(), imp.getHeight());
-				continue;
-			}
-			if (r.getType() != Roi.RECTANGLE || r.getCornerDiameter() > 0)
-				throw new CorralException("ROI '" + r.getName() + "' in " + from + " is a " + r.getTypeAsString() + ", not a rectangle (name an area ROI 'region...' to mark the annotated region)");
-			Rectangle b = r.getBounds();
-			int index = boxes.size() + 1;
-			int slice = imp.getStackSize() > 1 ? Math.max(r.getPosition(), Math.max(r.getTPosition(), r.getZPosition())) : 0;
-			boxes.add(new Box(index, b.x, b.y, b.width, b.height, slice, r.getName() != null ? r.getName() : "box-" + index));
+		for (Roi r : read.regions()) {
+			if (region == null) region = new byte[imp.getWidth() * imp.getHeight()];
+			paint(region, r, imp.getWidth(), imp.getHeight());
 		}
-		if (boxes.isEmpty()) throw new CorralException("No rectangles in " + from + " for " + imp.getTitle());
+		if (boxes.isEmpty()) throw new CorralException("No rectangles or corrected outlines in " + from + " for " + imp.getTitle());
 		return new Found(boxes, region, from);
 	}
 
+	/** A rectangle, or an outline someone drew or edited (not one Corral wrote and nobody touched). */
 	static boolean isBox(Roi r) {
 		String n = r.getName() == null ? "" : r.getName().toLowerCase(Locale.ROOT);
-		return r.getType() == Roi.RECTANGLE && !n.startsWith("mask-") && !n.startsWith("object-") && !n.startsWith("region");
+		return r.isArea() && !(r instanceof ij.gui.ImageRoi) && !n.startsWith("region") && !org.corral.boxes.RoiBoxes.isUneditedOutline(r);
 	}
 
 	private static void paint(byte[] region, Roi r, int w, int h) {

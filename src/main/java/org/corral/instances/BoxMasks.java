@@ -69,7 +69,11 @@ public final class BoxMasks {
 			Box b = boxes.get(k - 1).clip(w, h);
 			if (b == null || duplicateOf[k] > 0) continue;
 			boolean[] m;
-			if (opt.fit()) {
+			if (b.isExact()) { // an outlined object (a correction) is its outline
+				m = new boolean[b.width() * b.height()];
+				for (int y = 0; y < b.height(); y++)
+					for (int x = 0; x < b.width(); x++) m[y * b.width() + x] = b.inMask(x + b.x(), y + b.y());
+			} else if (opt.fit()) {
 				float[] p = new float[b.width() * b.height()];
 				for (int y = 0; y < b.height(); y++)
 					for (int x = 0; x < b.width(); x++) p[y * b.width() + x] = prob[(y + b.y()) * w + x + b.x()];

@@ -50,6 +50,7 @@ public final class RoiSets {
 			roi.setLocation(roi.getXBase() + x0[l], roi.getYBase() + y0[l]);
 			roi.setName(names != null && names[l - 1] != null ? names[l - 1] : String.format("object-%04d", l));
 			roi.setStrokeColor(new java.awt.Color(Overlays.colour(l))); // coloured by its label value here, never from its name
+			roi.setProperty(org.corral.boxes.RoiBoxes.FINGERPRINT, org.corral.boxes.RoiBoxes.fingerprint(roi)); // edited outlines become corrections
 
 			rois[l - 1] = roi;
 		}

@@ -32,13 +32,23 @@ import org.corral.supervision.Constraint;
 public final class BoxLoss {
 
 	/** The loss and its parts, as scalar NDArrays (the first one carries the gradient). */
-	public record Parts(NDArray total, NDArray background, NDArray constraints, NDArray pairwise, NDArray met, NDArray z, NDArray instance) {}
+	public record Parts(NDArray total, NDArray background, NDArray constraints, NDArray pairwise, NDArray met, NDArray z, NDArray instance, NDArray exact) {}
 
 	/** Supervision of a batch as arrays; built once per step in plain Java. */
 	public static final class Targets {
 		final NDArray background, pairH, pairV, corners, target, sign, norm, weight;
 		final int nConstraints;
-		NDArray instance, instanceWeight;
+		NDArray instance, instanceWeight, exact, exactWeight;
+
+		/**
+		 * Pixels known from outlines (corrections) as [B,1,H,W]: 1 = object, 0 = background where
+		 * {@code weight} is 1; weight 0 = not known from an outline.
+		 */
+		public Targets optExact(NDManager m, int b, int h, int w, float[] target, float[] weight) {
+			this.exact = m.create(target, new Shape(b, 1, h, w));
+			this.exactWeight = m.create(weight, new Shape(b, 1, h, w));
+			return this;
+		}
 
 		/**
 		 * The instance map's targets ([B,1,H,W]) in [0, 1] and their weights (0 = unknown): each
@@ -106,6 +116,13 @@ public final class BoxLoss {
 	 */
 	public static final double INSTANCE_WEIGHT = 1;
 
+	/**
+	 * Weight of the pixel term of outlined objects (corrections): cross-entropy averaged over the
+	 * outlined pixels alone, so that a few corrections weigh as much as all the known background,
+	 * however many boxes surround them (ours; the form of full supervision).
+	 */
+	public static final double EXACT_WEIGHT = 1;
+
 	public static Parts compute(NDArray all, Targets tg, double t, LossWeights weights) {
 		NDArray logits = all, instance = null;
 		if (all.getShape().get(1) == 2) {
@@ -127,6 +144,11 @@ public final class BoxLoss {
 		NDArray pair = same(left, right).mul(tg.pairH).sum().add(same(top, bottom).mul(tg.pairV).sum()).div(pairCount);
 
 		NDArray total = bg.add(pair.mul((float) weights.pairwise()));
+		NDArray exact;
+		if (tg.exact != null) { // cross-entropy with the outlines: softplus(x) - x t
+			exact = Activation.softPlus(logits).sub(logits.mul(tg.exact)).mul(tg.exactWeight).sum().div(tg.exactWeight.sum().maximum(1f));
+			total = total.add(exact.mul((float) EXACT_WEIGHT));
+		} else exact = bg.zerosLike();
 		NDArray cons, met, z;
 		if (tg.nConstraints > 0) {
 			Shape sh = s.getShape();
@@ -147,7 +169,7 @@ public final class BoxLoss {
 		}
 		if (instance != null) total = total.add(instance.mul((float) INSTANCE_WEIGHT));
 		else instance = bg.zerosLike();
-		return new Parts(total, bg, cons, pair, met, z, instance);
+		return new Parts(total, bg, cons, pair, met, z, instance, exact);
 	}
 
 	private static NDArray same(NDArray a, NDArray b) {

@@ -22,14 +22,29 @@ public final class Supervision {
 	public final byte[] inBox;
 	public final List<Constraint> constraints;
 	public final List<Box> boxes;
+	/**
+	 * Exactly outlined objects (corrections, {@link Box#isExact}): 1 where a pixel is known from an
+	 * outline, as object ({@link #exactObject} 1) or as the rest of the outline's bounding box
+	 * (background, unless another box claims it); null when no box is exact.
+	 */
+	public final byte[] exactKnown, exactObject;
 
-	Supervision(int width, int height, byte[] background, byte[] inBox, List<Constraint> constraints, List<Box> boxes) {
+	Supervision(int width, int height, byte[] background, byte[] inBox, List<Constraint> constraints, List<Box> boxes, byte[] exactKnown, byte[] exactObject) {
 		this.width = width;
 		this.height = height;
 		this.background = background;
 		this.inBox = inBox;
 		this.constraints = constraints;
 		this.boxes = boxes;
+		this.exactKnown = exactKnown;
+		this.exactObject = exactObject;
+	}
+
+	/** Number of exactly outlined objects. */
+	public int exactCount() {
+		int n = 0;
+		for (Box b : boxes) if (b.isExact()) n++;
+		return n;
 	}
 
 	/**
@@ -137,8 +152,36 @@ public final class Supervision {
 					for (int i = 0; i < bg.length; i++) if (region[i] != 0 && inBox[i] == 0) bg[i] = 1;
 			}
 			List<Constraint> cs = new ArrayList<>();
-			for (Box b : clipped) addBox(cs, b);
-			return new Supervision(width, height, bg, inBox, cs, clipped);
+			for (Box b : clipped) if (!b.isExact()) addBox(cs, b); // an outline needs no prior: its pixels are known
+			byte[][] exact = exact(clipped);
+			return new Supervision(width, height, bg, inBox, cs, clipped, exact[0], exact[1]);
+		}
+
+		/**
+		 * The pixels known from outlines: each outline's pixels are object, the rest of its bounding
+		 * box background, except where a rectangle box reaches in (a touching object drawn as a box)
+		 * or another outline claims the pixel.
+		 */
+		private byte[][] exact(List<Box> boxes) {
+			if (boxes.stream().noneMatch(Box::isExact)) return new byte[2][];
+			byte[] known = new byte[width * height], object = new byte[width * height];
+			for (Box b : boxes)
+				if (b.isExact())
+					for (int y = b.y(); y < b.y1(); y++)
+						for (int x = b.x(); x < b.x1(); x++) known[y * width + x] = 1;
+			for (Box b : boxes)
+				if (!b.isExact())
+					for (int y = b.y(); y < b.y1(); y++)
+						for (int x = b.x(); x < b.x1(); x++) known[y * width + x] = 0;
+			for (Box b : boxes)
+				if (b.isExact())
+					for (int y = b.y(); y < b.y1(); y++)
+						for (int x = b.x(); x < b.x1(); x++)
+							if (b.inMask(x, y)) {
+								known[y * width + x] = 1;
+								object[y * width + x] = 1;
+							}
+			return new byte[][] {known, object};
 		}
 
 		private void addBox(List<Constraint> cs, Box b) {

@@ -20,7 +20,8 @@ final class CropSampler {
 	record Prepared(String name, PlanarImage image, PlanarImage guide, Supervision sup, float[][] bounds) {}
 
 	/** One crop, ready for the batch arrays. */
-	record Crop(float[][] channels, float[] background, float[] pairH, float[] pairV, List<Constraint> constraints, float[] instance, float[] instanceWeight) {}
+	record Crop(float[][] channels, float[] background, float[] pairH, float[] pairV, List<Constraint> constraints, float[] instance, float[] instanceWeight,
+		float[] exact, float[] exactWeight) {}
 
 	private final List<Prepared> images;
 	private final int[] boxImage, boxIndex;
@@ -78,8 +79,9 @@ final class CropSampler {
 
 		float[][] ch = new float[nc][s * s];
 		float[][] guide = new float[nc][s * s];
-		float[] bg = new float[s * s];
+		float[] bg = new float[s * s], ex = new float[s * s], exw = new float[s * s];
 		byte[] inBox = new byte[s * s];
+		byte[] known = p.sup().exactKnown, object = p.sup().exactObject;
 		for (int y = 0; y < s; y++)
 			for (int x = 0; x < s; x++) {
 				int ix = ox + x, iy = oy + y;
@@ -94,6 +96,10 @@ final class CropSampler {
 				if (inside) {
 					bg[dst] = p.sup().background[src];
 					inBox[dst] = p.sup().inBox[src];
+					if (known != null && known[src] != 0) {
+						exw[dst] = 1;
+						ex[dst] = object[src];
+					}
 				}
 			}
 		if (settings.augment) Appearance.jitter(ch, p.bounds()[0], p.bounds()[1], s, rnd);
@@ -103,6 +109,7 @@ final class CropSampler {
 		}
 		List<Box> inCrop = new ArrayList<>();
 		for (Box b : p.sup().boxes) {
+			if (b.isExact()) continue; // its pixels are known (ex, exw): no constraints
 			int x0 = b.x() - ox, y0 = b.y() - oy;
 			if (x0 < 0 || y0 < 0 || x0 + b.width() > s || y0 + b.height() > s) continue;
 			inCrop.add(transform(d, new Box(b.index(), x0, y0, b.width(), b.height()), s));
@@ -127,9 +134,9 @@ final class CropSampler {
 					cen[dst] = mt[iy * w + ix];
 					cw[dst] = mw[iy * w + ix];
 				}
-			return new Crop(ch, bg, ph, pv, cons, cen, cw);
+			return new Crop(ch, bg, ph, pv, cons, cen, cw, ex, exw);
 		}
-		if (keepInstanceMap) return new Crop(ch, bg, ph, pv, cons, cen, cw); // all weights 0
+		if (keepInstanceMap) return new Crop(ch, bg, ph, pv, cons, cen, cw, ex, exw); // all weights 0
 		// early in learning, the instance map of every box that reaches into the crop is the cone of its
 		// inscribed ellipse (1 at the centre), in the crop's (transformed) frame
 		for (int i = 0; i < cw.length; i++) cw[i] = bg[i];
@@ -146,7 +153,7 @@ final class CropSampler {
 					cw[i] = 1;
 				}
 		}
-		return new Crop(ch, bg, ph, pv, cons, cen, cw);
+		return new Crop(ch, bg, ph, pv, cons, cen, cw, ex, exw);
 	}
 
 	private static double dist2(float[][] g, int i, int j) {

@@ -87,6 +87,8 @@ public final class Learner {
 			prepared.add(new CropSampler.Prepared(ti.name(), norm, Resample.mean3(norm), sup, Normalise.bounds(ti.image(), Normalise.LOW, Normalise.HIGH)));
 		}
 		if (nBoxes == 0) throw new CorralException("Nothing to learn from: none of the " + images.size() + " image(s) has a box inside it");
+		int nExact = prepared.stream().mapToInt(p -> p.sup().exactCount()).sum();
+		boolean exact = nExact > 0;
 
 		Engine.getInstance().setRandomSeed((int) s.seed);
 		SplittableRandom rnd = new SplittableRandom(s.seed);
@@ -125,6 +127,7 @@ public final class Learner {
 				if (outputs == 2 && step == maskTargetStep(total[0])) maskTargets(net, prepared, sampler, trainer.getManager());
 				float[] x = new float[b * nc * c * c], bg = new float[b * c * c], ph = new float[b * c * (c - 1)], pv = new float[b * (c - 1) * c];
 				float[] cen = new float[b * c * c], cw = new float[b * c * c];
+				float[] ex = exact ? new float[b * c * c] : null, exw = exact ? new float[b * c * c] : null;
 				List<List<org.corral.supervision.Constraint>> cons = new ArrayList<>();
 				for (int i = 0; i < b; i++) {
 					CropSampler.Crop cr = sampler.next();
@@ -134,11 +137,16 @@ public final class Learner {
 					System.arraycopy(cr.pairV(), 0, pv, i * (c - 1) * c, (c - 1) * c);
 					System.arraycopy(cr.instance(), 0, cen, i * c * c, c * c);
 					System.arraycopy(cr.instanceWeight(), 0, cw, i * c * c, c * c);
+					if (exact) {
+						System.arraycopy(cr.exact(), 0, ex, i * c * c, c * c);
+						System.arraycopy(cr.exactWeight(), 0, exw, i * c * c, c * c);
+					}
 					cons.add(cr.constraints());
 				}
 				try (NDManager sm = trainer.getManager().newSubManager(); GradientCollector gc = trainer.newGradientCollector()) {
 					BoxLoss.Targets tg = new BoxLoss.Targets(sm, b, c, c, bg, ph, pv, cons, s.weights);
 					if (outputs == 2) tg.optInstanceMap(sm, b, c, c, cen, cw);
+					if (exact) tg.optExact(sm, b, c, c, ex, exw);
 					NDArray in = sm.create(x, new Shape(b, nc, c, c));
 					NDArray logits = trainer.forward(new NDList(in)).singletonOrThrow();
 					BoxLoss.Parts p = BoxLoss.compute(logits, tg, t, s.weights);
@@ -197,6 +205,7 @@ public final class Learner {
 			if (from != null) h.counts.put("continuedFrom", from.header().created);
 			h.counts.put("images", prepared.size());
 			h.counts.put("boxes", nBoxes);
+			h.counts.put("outlines", nExact);
 			h.counts.put("steps", total[0]);
 			h.counts.put("shortenedByTimeBudget", shortened);
 			h.counts.put("secondsPerStep", (System.nanoTime() - start) / 1e9 / total[0]);
@@ -245,6 +254,16 @@ public final class Learner {
 				float[] prob = predictor.predictMaps(im, null)[0];
 				int[] lab = org.corral.instances.BoxMasks.make(prob, im.width, im.height, sup.boxes,
 					org.corral.instances.BoxMasks.Options.DEFAULTS.withMargin(s.margin)).labels();
+				for (int k = 0; k < sup.boxes.size(); k++) { // an outlined object is its outline
+					Box bx = sup.boxes.get(k);
+					if (!bx.isExact()) continue;
+					for (int y = bx.y(); y < bx.y1(); y++)
+						for (int x = bx.x(); x < bx.x1(); x++) {
+							int q = y * im.width + x;
+							if (bx.inMask(x, y)) lab[q] = k + 1;
+							else if (lab[q] == k + 1) lab[q] = 0;
+						}
+				}
 				float[] tg = org.corral.instances.DistanceTargets.of(lab, im.width, im.height);
 				float[] wt = new float[tg.length];
 				for (int k = 0; k < wt.length; k++) wt[k] = sup.inBox[k] != 0 || sup.background[k] != 0 ? 1 : 0;

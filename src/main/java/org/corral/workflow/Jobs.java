@@ -261,11 +261,14 @@ public final class Jobs {
 		List<Roi> rois = new ArrayList<>();
 		String[] names = new String[boxes.size()];
 		for (int k = 0; k < boxes.size(); k++) names[k] = String.format(Locale.ROOT, "mask-%04d-of-%s", k + 1, boxes.get(k).name());
-		for (int p = 0; p < labels.length; p++)
-			for (Roi roi : RoiSets.outlines(labels[p], w, h, boxes.size(), names)) if (roi != null) {
-				if (labels.length > 1) roi.setPosition(p + 1);
-				rois.add(roi);
+		for (int p = 0; p < labels.length; p++) {
+			Roi[] outlines = RoiSets.outlines(labels[p], w, h, boxes.size(), names);
+			for (int k = 0; k < outlines.length; k++) if (outlines[k] != null) {
+				if (labels.length > 1) outlines[k].setPosition(p + 1);
+				org.corral.boxes.RoiBoxes.setSourceBox(outlines[k], boxes.get(k)); // learning again after an edit finds the box
+				rois.add(outlines[k]);
 			}
+		}
 		return rois;
 	}
 

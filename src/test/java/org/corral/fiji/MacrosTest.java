@@ -125,6 +125,21 @@ class MacrosTest {
 			Scores.Tally t = Scores.compare(ScoreAgainstReference.values(labels),
 				ImageFiles.readLabels(demo.resolve("reference").resolve("seedcoat-01.tif"), null));
 			assertTrue(t.objectDice() > 0.8, "per-object Dice " + t.objectDice());
+
+			// the user corrects one outline in the ROI Manager and learns again from the same ROI Manager
+			int at = -1;
+			for (int i = 0; i < rm.getCount(); i++) if (rm.getRoi(i).getName().startsWith("mask-")) { at = i; break; }
+			Roi outline = rm.getRoi(at);
+			java.awt.Rectangle ob = outline.getBounds();
+			Roi corrected = new ij.gui.OvalRoi(ob.x, ob.y, ob.width + 1, ob.height);
+			corrected.setName(outline.getName());
+			rm.setRoi(corrected, at);
+			Path again = dir.resolve("rm-model-corrected.zip");
+			new Interpreter().run("run(\"Corral Learn from Boxes\", \"source=[current image] model=[" + again + "] steps=20\");", "");
+			try (org.corral.predict.ModelRunner m = org.corral.predict.ModelRunner.open(again)) {
+				assertEquals(1, ((Number) m.header().counts.get("outlines")).intValue(), "the corrected outline is learned as an exact object");
+				assertEquals(boxes.size(), ((Number) m.header().counts.get("boxes")).intValue(), "it replaces its box; the other boxes stay");
+			}
 		} finally {
 			Interpreter.batchMode = false;
 			RoiManager rm = RoiManager.getInstance();

@@ -11,6 +11,32 @@ import org.junit.jupiter.api.Test;
 class SupervisionTest {
 
 	@Test
+	void anOutlinedObjectGivesKnownPixelsAndNoConstraints() {
+		// a 6x6 outline (a 4x4 square inside it) touching a rectangle box that reaches into its corner
+		byte[] m = new byte[36];
+		for (int y = 1; y < 5; y++)
+			for (int x = 1; x < 5; x++) m[y * 6 + x] = 1;
+		Box outline = new Box(1, 10, 10, 6, 6, 0, "outline", m), rect = new Box(2, 14, 14, 8, 8);
+		Supervision s = Supervision.builder(40, 40).optBand(3).build(List.of(outline, rect));
+		assertEquals(1, s.exactCount());
+		assertTrue(s.constraints.stream().allMatch(c -> c.box() == 2), "constraints only for the rectangle");
+		int w = 40;
+		assertEquals(1, s.exactObject[12 * w + 12], "inside the outline: object");
+		assertEquals(1, s.exactKnown[12 * w + 12]);
+		assertEquals(1, s.exactKnown[10 * w + 10], "the outline's box corner: known background");
+		assertEquals(0, s.exactObject[10 * w + 10]);
+		assertEquals(0, s.exactKnown[15 * w + 15], "where the rectangle reaches in, nothing is known from the outline");
+		int known = 0, object = 0;
+		for (int i = 0; i < s.exactKnown.length; i++) {
+			known += s.exactKnown[i];
+			object += s.exactObject[i];
+		}
+		assertEquals(16, object);
+		assertEquals(36 - 4 + 1, known, "the outline's box less the rectangle's 2x2 corner, but its own pixel (14,14) there stays object");
+		assertEquals(null, Supervision.builder(40, 40).build(List.of(rect)).exactKnown, "no outline, no arrays");
+	}
+
+	@Test
 	void bandsCoverTheBoxWhenWDividesTheSide() {
 		Supervision s = Supervision.builder(50, 50).optBand(5).build(List.of(new Box(1, 10, 20, 10, 15)));
 		List<Constraint> b = s.constraints.stream().filter(c -> c.kind() == Constraint.Kind.BAND).toList();
