@@ -7,15 +7,26 @@ package org.corral.boxes;
  * {@code mask} is null for a box drawn as a rectangle (the tight-box prior applies); for an object
  * whose outline is known exactly (a drawn or corrected outline) it holds width x height values,
  * row by row, 1 = object and 0 = background: the rectangle is then the outline's bounding box.
+ * {@code className} is the object's class when the user gave one (ROI group, CSV column), else null.
  */
-public record Box(int index, int x, int y, int width, int height, int slice, String name, byte[] mask) {
+public record Box(int index, int x, int y, int width, int height, int slice, String name, byte[] mask, String className) {
 	public Box {
 		if (mask != null && mask.length != width * height)
 			throw new IllegalArgumentException("mask of " + mask.length + " values for a " + width + "x" + height + " box");
+		if (className != null && className.isBlank()) className = null;
+	}
+
+	public Box(int index, int x, int y, int width, int height, int slice, String name, byte[] mask) {
+		this(index, x, y, width, height, slice, name, mask, null);
 	}
 
 	public Box(int index, int x, int y, int width, int height, int slice, String name) {
-		this(index, x, y, width, height, slice, name, null);
+		this(index, x, y, width, height, slice, name, null, null);
+	}
+
+	/** The same box of another class (null = none given). */
+	public Box withClass(String c) {
+		return new Box(index, x, y, width, height, slice, name, mask, c);
 	}
 
 	public Box(int index, int x, int y, int width, int height) {
@@ -35,7 +46,7 @@ public record Box(int index, int x, int y, int width, int height, int slice, Str
 
 	/** The same box under another index (its order in a list). */
 	public Box withIndex(int i) {
-		return new Box(i, x, y, width, height, slice, name, mask);
+		return new Box(i, x, y, width, height, slice, name, mask, className);
 	}
 
 	/** The part of the mask inside the rectangle (nx, ny, nw, nh) of the image; null for a rectangle. */
@@ -73,7 +84,7 @@ public record Box(int index, int x, int y, int width, int height, int slice, Str
 		int nx1 = Math.min(imageWidth, x1()), ny1 = Math.min(imageHeight, y1());
 		if (nx1 <= nx || ny1 <= ny) return null;
 		if (nx == x && ny == y && nx1 == x1() && ny1 == y1()) return this;
-		return new Box(index, nx, ny, nx1 - nx, ny1 - ny, slice, name, maskIn(nx, ny, nx1 - nx, ny1 - ny));
+		return new Box(index, nx, ny, nx1 - nx, ny1 - ny, slice, name, maskIn(nx, ny, nx1 - nx, ny1 - ny), className);
 	}
 
 	/** True when the box touches the image border (the object may be cut by it). */
@@ -92,10 +103,10 @@ public record Box(int index, int x, int y, int width, int height, int slice, Str
 				for (int xx = 0; xx < nw; xx++)
 					m[yy * nw + xx] = (byte) (inMask((int) Math.floor((nx + xx + 0.5) / s), (int) Math.floor((ny + yy + 0.5) / s)) ? 1 : 0);
 		}
-		return new Box(index, nx, ny, nw, nh, slice, name, m);
+		return new Box(index, nx, ny, nw, nh, slice, name, m, className);
 	}
 
 	public Box grown(int by) {
-		return new Box(index, x - by, y - by, width + 2 * by, height + 2 * by, slice, name, maskIn(x - by, y - by, width + 2 * by, height + 2 * by));
+		return new Box(index, x - by, y - by, width + 2 * by, height + 2 * by, slice, name, maskIn(x - by, y - by, width + 2 * by, height + 2 * by), className);
 	}
 }

@@ -36,7 +36,7 @@ public final class BoxFiles {
 		}
 		if (lines.isEmpty()) throw new CorralException("Box file " + file + " is empty (expected a header row image,x,y,width,height)");
 		String[] header = split(stripBom(lines.get(0)));
-		int ci = -1, cx = -1, cy = -1, cw = -1, ch = -1, cs = -1, cm = -1;
+		int ci = -1, cx = -1, cy = -1, cw = -1, ch = -1, cs = -1, cm = -1, cc = -1;
 		Map<Path, ij.process.ImageProcessor[]> masks = new java.util.HashMap<>();
 		for (int i = 0; i < header.length; i++) {
 			switch (header[i].trim().toLowerCase(Locale.ROOT)) {
@@ -47,6 +47,7 @@ public final class BoxFiles {
 				case "height" -> ch = i;
 				case "slice" -> cs = i;
 				case "mask" -> cm = i;
+				case "class" -> cc = i;
 				default -> { }
 			}
 		}
@@ -75,7 +76,8 @@ public final class BoxFiles {
 			List<Box> list = out.computeIfAbsent(image, k -> new ArrayList<>());
 			int index = list.size() + 1;
 			byte[] m = cm >= 0 && cm < f.length && !f[cm].isBlank() ? objectIn(masks, file, f[cm].trim(), x, y, w, h, s, where) : null;
-			list.add(new Box(index, x, y, w, h, s, (m != null ? "outline-" : "box-") + index, m));
+			String cls = cc >= 0 && cc < f.length && !f[cc].isBlank() ? f[cc].trim() : null;
+			list.add(new Box(index, x, y, w, h, s, (m != null ? "outline-" : "box-") + index, m, cls));
 		}
 		return out;
 	}

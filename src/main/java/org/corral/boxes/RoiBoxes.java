@@ -53,8 +53,9 @@ public final class RoiBoxes {
 				continue;
 			}
 			Rectangle b = r.getBounds();
-			if (isRectangle(r)) rects.add(new Box(0, b.x, b.y, b.width, b.height, slice, name.isEmpty() ? null : name));
-			else outlines.add(new Box(0, b.x, b.y, b.width, b.height, slice, name.isEmpty() ? null : name, mask(r)));
+			String cls = className(r);
+			if (isRectangle(r)) rects.add(new Box(0, b.x, b.y, b.width, b.height, slice, name.isEmpty() ? null : name, null, cls));
+			else outlines.add(new Box(0, b.x, b.y, b.width, b.height, slice, name.isEmpty() ? null : name, mask(r), cls));
 		}
 		for (Box f : fromOutlines)
 			if (rects.stream().noneMatch(r -> r.slice() == f.slice() && (f.name().equals(r.name()) || r.x() == f.x() && r.y() == f.y() && r.width() == f.width() && r.height() == f.height())))
@@ -65,9 +66,20 @@ public final class RoiBoxes {
 		List<Box> out = new ArrayList<>();
 		for (Box b : kept) {
 			int i = out.size() + 1;
-			out.add(new Box(i, b.x(), b.y(), b.width(), b.height(), b.slice(), b.name() != null ? b.name() : (b.isExact() ? "outline-" : "box-") + i, b.mask()));
+			out.add(new Box(i, b.x(), b.y(), b.width(), b.height(), b.slice(), b.name() != null ? b.name() : (b.isExact() ? "outline-" : "box-") + i, b.mask(), b.className()));
 		}
 		return new Read(out, regions);
+	}
+
+	/**
+	 * A ROI's class: the name of its ROI group when the group has one, else {@code group-N}; null
+	 * for group 0 (no group). ImageJ keeps group names in its preferences ({@link Roi#getGroupName}).
+	 */
+	public static String className(Roi r) {
+		int g = r.getGroup();
+		if (g <= 0) return null;
+		String n = Roi.getGroupName(g);
+		return n != null && !n.isBlank() ? n.trim() : "group-" + g;
 	}
 
 	/** The box an outline of Corral's was masked from (named as in {@code mask-0003-of-NAME}), or null. */
@@ -77,7 +89,8 @@ public final class RoiBoxes {
 		String[] v = p.split(",");
 		if (v.length != 4) return null;
 		try {
-			return new Box(0, Integer.parseInt(v[0]), Integer.parseInt(v[1]), Integer.parseInt(v[2]), Integer.parseInt(v[3]), slice, n.substring(n.indexOf("-of-") + 4));
+			return new Box(0, Integer.parseInt(v[0]), Integer.parseInt(v[1]), Integer.parseInt(v[2]), Integer.parseInt(v[3]), slice, n.substring(n.indexOf("-of-") + 4), null,
+				className(r));
 		} catch (NumberFormatException e) {
 			return null;
 		}

@@ -47,6 +47,10 @@ public final class ImageJOutputs {
 	 */
 	public static void showOutlines(ImagePlus source, List<Roi> outlines, boolean keep) {
 		Overlay ov = keep && source.getOverlay() != null ? source.getOverlay() : new Overlay();
+		for (Roi r : outlines) { // the ROI Manager names each class's group after its class
+			String cls = r.getProperty(org.corral.workflow.Jobs.CLASS_PROPERTY);
+			if (cls != null && r.getGroup() > 0) Roi.setGroupName(r.getGroup(), cls);
+		}
 		for (Roi r : outlines) {
 			ov.add((Roi) r.clone()); // outlines carry the colour of their label from when they were traced
 		}
@@ -59,6 +63,11 @@ public final class ImageJOutputs {
 	}
 
 	public static ResultsTable boxTable(List<Box> boxes, BoxMasks.Fit[] fits) {
+		return boxTable(boxes, fits, null, null);
+	}
+
+	/** As above, with the class columns when the model knows classes. */
+	public static ResultsTable boxTable(List<Box> boxes, BoxMasks.Fit[] fits, String[] classes, double[] classConfidence) {
 		ResultsTable rt = new ResultsTable();
 		for (int k = 0; k < boxes.size(); k++) {
 			Box b = boxes.get(k);
@@ -78,11 +87,14 @@ public final class ImageJOutputs {
 			rt.addValue("mean_probability", f.meanProbability());
 			rt.addValue("prior_met", f.priorMet() ? 1 : 0);
 			rt.addValue("flags", String.join(";", f.flags()));
+			if (classes != null) {
+				rt.addValue("class", classes[k] == null ? "" : classes[k]);
+				rt.addValue("class_confidence", classConfidence[k]);
+			}
 		}
 		return rt;
 	}
 
-	/** A CSV text table (header row) as a ResultsTable; numeric cells become numbers. */
 	/** The per-object table of a whole-image result, with the columns of {@code NAME.objects.csv}. */
 	public static ResultsTable objectTable(java.util.List<org.corral.workflow.Jobs.ObjectRow> rows) {
 		ResultsTable rt = new ResultsTable();
@@ -99,6 +111,10 @@ public final class ImageJOutputs {
 			rt.addValue("mean_probability", o.meanProbability());
 			rt.addValue("confidence", o.confidence());
 			rt.addValue("flags", String.join(";", o.flags()));
+			if (r.className() != null || !Double.isNaN(r.classConfidence())) {
+				rt.addValue("class", r.className() == null ? "" : r.className());
+				rt.addValue("class_confidence", r.classConfidence());
+			}
 		}
 		return rt;
 	}

@@ -78,8 +78,8 @@ public class MasksForBoxes implements Command {
 		}
 		if (o.shown() == null) throw new CorralException("None of the boxes lies on " + image.getTitle());
 		labels = ImageJOutputs.labelImage(image.getShortTitle() + "-masks", o.labels(), image);
-		ImageJOutputs.showOutlines(image, Jobs.boxOutlines(o.labels(), image.getWidth(), image.getHeight(), bs), keep);
-		boxes = ImageJOutputs.boxTable(bs, o.fits());
+		ImageJOutputs.showOutlines(image, Jobs.boxOutlines(o.labels(), image.getWidth(), image.getHeight(), bs, o.classes()), keep);
+		boxes = ImageJOutputs.boxTable(bs, o.fits(), o.classes(), o.classConfidence());
 		ImageJOutputs.show(boxes, "Corral boxes");
 	}
 }

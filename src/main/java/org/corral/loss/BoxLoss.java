@@ -32,13 +32,25 @@ import org.corral.supervision.Constraint;
 public final class BoxLoss {
 
 	/** The loss and its parts, as scalar NDArrays (the first one carries the gradient). */
-	public record Parts(NDArray total, NDArray background, NDArray constraints, NDArray pairwise, NDArray met, NDArray z, NDArray instance, NDArray exact) {}
+	public record Parts(NDArray total, NDArray background, NDArray constraints, NDArray pairwise, NDArray met, NDArray z, NDArray instance, NDArray exact,
+		NDArray classes) {}
 
 	/** Supervision of a batch as arrays; built once per step in plain Java. */
 	public static final class Targets {
 		final NDArray background, pairH, pairV, corners, target, sign, norm, weight;
 		final int nConstraints;
-		NDArray instance, instanceWeight, exact, exactWeight;
+		NDArray instance, instanceWeight, exact, exactWeight, classes, classWeight;
+
+		/**
+		 * The class of each pixel inside a box of a known class, as one-hot [B,K,H,W], and 1 where
+		 * a class is known ([B,1,H,W]; 0 outside boxes, where boxes of two classes overlap, and for
+		 * boxes without a class).
+		 */
+		public Targets optClasses(NDManager m, int b, int k, int h, int w, float[] oneHot, float[] weight) {
+			this.classes = m.create(oneHot, new Shape(b, k, h, w));
+			this.classWeight = m.create(weight, new Shape(b, 1, h, w));
+			return this;
+		}
 
 		/**
 		 * Pixels known from outlines (corrections) as [B,1,H,W]: 1 = object, 0 = background where
@@ -123,9 +135,22 @@ public final class BoxLoss {
 	 */
 	public static final double EXACT_WEIGHT = 1;
 
+	/**
+	 * Weight of the class term: cross-entropy of the class maps on the pixels of boxes of a known
+	 * class. The object map stays one for all classes, so every class shares the box loss and the
+	 * known background (ours).
+	 */
+	public static final double CLASS_WEIGHT = 1;
+
 	public static Parts compute(NDArray all, Targets tg, double t, LossWeights weights) {
-		NDArray logits = all, instance = null;
-		if (all.getShape().get(1) == 2) {
+		NDArray logits = all.getShape().get(1) == 1 ? all : all.get(new NDIndex(":, 0:1")), instance = null;
+		NDArray classLoss = null;
+		if (tg.classes != null) { // cross-entropy of the class maps (softmax over classes) where a box gives the class
+			long k = tg.classes.getShape().get(1), first = all.getShape().get(1) - k;
+			NDArray logp = all.get(new NDIndex(":, " + first + ":")).logSoftmax(1);
+			classLoss = logp.mul(tg.classes).sum(new int[] {1}, true).mul(tg.classWeight).sum().neg().div(tg.classWeight.sum().maximum(1f));
+		}
+		if (tg.instance != null) {
 			logits = all.get(new NDIndex(":, 0:1"));
 			NDArray c = all.get(new NDIndex(":, 1:2"));
 			// binary cross-entropy with soft targets: softplus(x) - x t, where the target is known
@@ -169,7 +194,9 @@ public final class BoxLoss {
 		}
 		if (instance != null) total = total.add(instance.mul((float) INSTANCE_WEIGHT));
 		else instance = bg.zerosLike();
-		return new Parts(total, bg, cons, pair, met, z, instance, exact);
+		if (classLoss != null) total = total.add(classLoss.mul((float) CLASS_WEIGHT));
+		else classLoss = bg.zerosLike();
+		return new Parts(total, bg, cons, pair, met, z, instance, exact, classLoss);
 	}
 
 	private static NDArray same(NDArray a, NDArray b) {

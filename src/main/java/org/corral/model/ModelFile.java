@@ -97,7 +97,7 @@ public final class ModelFile {
 		if (h == null || !ModelHeader.FORMAT.equals(h.format)) throw new CorralException("Model file " + file + " is not a Corral model");
 		if (h.formatVersion > ModelHeader.VERSION)
 			throw new CorralException("Model file " + file + " has format version " + h.formatVersion + ", newer than this Corral reads (" + ModelHeader.VERSION + "); update Corral");
-		if (h.formatVersion < 1 || h.inChannels < 1 || h.baseChannels < 1 || h.levels < 2 || h.levels > 6 || h.outputs < 1 || h.outputs > 2)
+		if (h.formatVersion < 1 || h.inChannels < 1 || h.baseChannels < 1 || h.levels < 2 || h.levels > 6 || h.outputs < 1 || h.outputs - 1 - h.classCount() < 0 || h.outputs - 1 - h.classCount() > 1)
 			throw new CorralException("Model file " + file + " has an invalid header (format " + h.formatVersion + ", channels " + h.inChannels + ", width " + h.baseChannels + ", levels " + h.levels + ")");
 		return h;
 	}

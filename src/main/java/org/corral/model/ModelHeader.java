@@ -19,8 +19,28 @@ public final class ModelHeader {
 	public int inChannels;
 	public int baseChannels;
 	public int levels;
-	/** Output maps: 1 = object probability; 2 = also the instance map (older files: 1). */
+	/**
+	 * Output maps: the object probability, then the instance map when learned, then one map per
+	 * class when the boxes had two or more classes ({@link #classes}).
+	 */
 	public int outputs = 1;
+	/** Class names, in the order of the class maps; empty for a model of one kind of object. */
+	public java.util.List<String> classes = new java.util.ArrayList<>();
+
+	/** Number of class maps (0 for one kind of object). */
+	public int classCount() {
+		return classes == null || classes.size() < 2 ? 0 : classes.size();
+	}
+
+	/** True when the network has the instance map (channel 1). */
+	public boolean hasInstanceMap() {
+		return outputs - 1 - classCount() == 1;
+	}
+
+	/** Channel of the first class map. */
+	public int firstClassChannel() {
+		return hasInstanceMap() ? 2 : 1;
+	}
 	// normalisation: per channel percentiles mapped to 0 and 1
 	public double normLow;
 	public double normHigh;

@@ -44,7 +44,7 @@ public final class UNet extends AbstractBlock {
 	 */
 	public UNet(int inChannels, int base, int levels, int outputs) {
 		super(VERSION);
-		if (outputs < 1 || outputs > 2) throw new IllegalArgumentException("outputs must be 1 or 2, got " + outputs);
+		if (outputs < 1) throw new IllegalArgumentException("outputs must be at least 1, got " + outputs);
 		this.outputs = outputs;
 		if (levels < 2 || levels > 6) throw new IllegalArgumentException("levels must be 2..6, got " + levels);
 		this.inChannels = inChannels;

@@ -121,6 +121,19 @@ public final class ModelRunner implements AutoCloseable {
 		return p;
 	}
 
+	/** The instance map among {@link #maps}' outputs, or null when the model has none. */
+	public float[] instanceMap(float[][] maps) {
+		return header.hasInstanceMap() ? maps[1] : null;
+	}
+
+	/** The class maps among {@link #maps}' outputs, in the order of the header's classes; empty for one kind of object. */
+	public float[][] classMaps(float[][] maps) {
+		int k = header.classCount(), o = header.firstClassChannel();
+		float[][] c = new float[k][];
+		for (int i = 0; i < k; i++) c[i] = maps[o + i];
+		return c;
+	}
+
 	/** A map that is not a number would give silently empty masks: refused with a message instead. */
 	static float[][] finite(float[][] maps) {
 		for (float[] m : maps)

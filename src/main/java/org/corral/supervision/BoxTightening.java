@@ -89,6 +89,6 @@ public final class BoxTightening {
 		int nx0 = b.x() + Math.min(x0, margin), ny0 = b.y() + Math.min(y0, margin);
 		int nx1 = b.x1() - Math.min(bw - 1 - x1, margin), ny1 = b.y1() - Math.min(bh - 1 - y1, margin);
 		if (nx1 - nx0 < 1 || ny1 - ny0 < 1) return box;
-		return new Box(box.index(), nx0, ny0, nx1 - nx0, ny1 - ny0, box.slice(), box.name());
+		return new Box(box.index(), nx0, ny0, nx1 - nx0, ny1 - ny0, box.slice(), box.name(), null, box.className());
 	}
 }

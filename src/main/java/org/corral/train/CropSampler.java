@@ -17,11 +17,15 @@ import org.corral.supervision.Supervision;
  */
 final class CropSampler {
 	/** One prepared image: normalised pixels, a smoothed copy for the pairwise term, supervision. */
-	record Prepared(String name, PlanarImage image, PlanarImage guide, Supervision sup, float[][] bounds) {}
+	record Prepared(String name, PlanarImage image, PlanarImage guide, Supervision sup, float[][] bounds, int[] classes) {
+		Prepared(String name, PlanarImage image, PlanarImage guide, Supervision sup, float[][] bounds) {
+			this(name, image, guide, sup, bounds, null);
+		}
+	}
 
 	/** One crop, ready for the batch arrays. */
 	record Crop(float[][] channels, float[] background, float[] pairH, float[] pairV, List<Constraint> constraints, float[] instance, float[] instanceWeight,
-		float[] exact, float[] exactWeight) {}
+		float[] exact, float[] exactWeight, int[] classes) {}
 
 	/** How much more often crops centre on an outlined object than on a box (measured: README, corrections). */
 	static final int EXACT_OVERSAMPLE = 4;
@@ -89,6 +93,8 @@ final class CropSampler {
 		float[] bg = new float[s * s], ex = new float[s * s], exw = new float[s * s];
 		byte[] inBox = new byte[s * s];
 		byte[] known = p.sup().exactKnown, object = p.sup().exactObject;
+		int[] cls = p.classes() == null ? null : new int[s * s];
+		if (cls != null) java.util.Arrays.fill(cls, -1);
 		for (int y = 0; y < s; y++)
 			for (int x = 0; x < s; x++) {
 				int ix = ox + x, iy = oy + y;
@@ -103,6 +109,7 @@ final class CropSampler {
 				if (inside) {
 					bg[dst] = p.sup().background[src];
 					inBox[dst] = p.sup().inBox[src];
+					if (cls != null) cls[dst] = p.classes()[src];
 					if (known != null && known[src] != 0) {
 						exw[dst] = 1;
 						ex[dst] = object[src];
@@ -141,9 +148,9 @@ final class CropSampler {
 					cen[dst] = mt[iy * w + ix];
 					cw[dst] = mw[iy * w + ix];
 				}
-			return new Crop(ch, bg, ph, pv, cons, cen, cw, ex, exw);
+			return new Crop(ch, bg, ph, pv, cons, cen, cw, ex, exw, cls);
 		}
-		if (keepInstanceMap) return new Crop(ch, bg, ph, pv, cons, cen, cw, ex, exw); // all weights 0
+		if (keepInstanceMap) return new Crop(ch, bg, ph, pv, cons, cen, cw, ex, exw, cls); // all weights 0
 		// early in learning, the instance map of every box that reaches into the crop is the cone of its
 		// inscribed ellipse (1 at the centre), in the crop's (transformed) frame
 		for (int i = 0; i < cw.length; i++) cw[i] = bg[i];
@@ -160,7 +167,7 @@ final class CropSampler {
 					cw[i] = 1;
 				}
 		}
-		return new Crop(ch, bg, ph, pv, cons, cen, cw, ex, exw);
+		return new Crop(ch, bg, ph, pv, cons, cen, cw, ex, exw, cls);
 	}
 
 	private static double dist2(float[][] g, int i, int j) {

@@ -73,6 +73,7 @@ public final class Learner {
 		if (images.isEmpty()) throw new CorralException("Nothing to learn from: no images");
 		int nc = images.get(0).image().nChannels();
 		int nBoxes = 0;
+		List<String> classes = classes(images);
 		List<CropSampler.Prepared> prepared = new ArrayList<>();
 		List<Double> sides = new ArrayList<>(), microns = new ArrayList<>();
 		for (TrainingImage ti : images) {
@@ -84,7 +85,8 @@ public final class Learner {
 			if (sup.boxes.isEmpty()) continue;
 			nBoxes += sup.boxes.size();
 			for (Box b : ti.boxes()) sides.add((b.width() + b.height()) / 2.0); // as drawn: masking sees boxes drawn alike
-			prepared.add(new CropSampler.Prepared(ti.name(), norm, Resample.mean3(norm), sup, Normalise.bounds(ti.image(), Normalise.LOW, Normalise.HIGH)));
+			prepared.add(new CropSampler.Prepared(ti.name(), norm, Resample.mean3(norm), sup, Normalise.bounds(ti.image(), Normalise.LOW, Normalise.HIGH),
+				classes.size() < 2 ? null : classMap(sup, classes)));
 		}
 		if (nBoxes == 0) throw new CorralException("Nothing to learn from: none of the " + images.size() + " image(s) has a box inside it");
 		int nExact = prepared.stream().mapToInt(p -> p.sup().exactCount()).sum();
@@ -96,9 +98,11 @@ public final class Learner {
 		if (from != null && (from.header().inChannels != nc || from.header().baseChannels != s.base || from.header().levels != s.levels))
 			throw new CorralException("Cannot continue from the model: it was learned on " + from.header().inChannels + "-channel images with width "
 				+ from.header().baseChannels + " and " + from.header().levels + " levels; these images have " + nc + " channel(s)");
-		int outputs = from != null ? Math.max(1, from.header().outputs) : s.instanceMap ? 2 : 1;
+		boolean instance = from != null ? from.header().hasInstanceMap() : s.instanceMap;
+		int nClasses = classes.size() < 2 ? 0 : classes.size();
+		int outputs = 1 + (instance ? 1 : 0) + nClasses;
 		UNet net = new UNet(nc, s.base, s.levels, outputs);
-		if (from != null && outputs == 2) sampler.keepInstanceMap(); // until new targets exist
+		if (from != null && instance) sampler.keepInstanceMap(); // until new targets exist
 		int[] total = {s.steps};
 		boolean shortened = false;
 		Tracker lr = step -> (float) (s.learningRate * lrFactor(step, total[0]));
@@ -124,10 +128,11 @@ public final class Learner {
 			for (int step = 1; step <= total[0]; step++) {
 				if (progress.cancelled()) throw new CancellationException("learning cancelled at step " + step);
 				double t = tAt(step, total[0]);
-				if (outputs == 2 && step == maskTargetStep(total[0])) maskTargets(net, prepared, sampler, trainer.getManager());
+				if (instance && step == maskTargetStep(total[0])) maskTargets(net, prepared, sampler, trainer.getManager());
 				float[] x = new float[b * nc * c * c], bg = new float[b * c * c], ph = new float[b * c * (c - 1)], pv = new float[b * (c - 1) * c];
 				float[] cen = new float[b * c * c], cw = new float[b * c * c];
 				float[] ex = exact ? new float[b * c * c] : null, exw = exact ? new float[b * c * c] : null;
+				float[] oneHot = nClasses > 0 ? new float[b * nClasses * c * c] : null, clw = nClasses > 0 ? new float[b * c * c] : null;
 				List<List<org.corral.supervision.Constraint>> cons = new ArrayList<>();
 				for (int i = 0; i < b; i++) {
 					CropSampler.Crop cr = sampler.next();
@@ -137,6 +142,13 @@ public final class Learner {
 					System.arraycopy(cr.pairV(), 0, pv, i * (c - 1) * c, (c - 1) * c);
 					System.arraycopy(cr.instance(), 0, cen, i * c * c, c * c);
 					System.arraycopy(cr.instanceWeight(), 0, cw, i * c * c, c * c);
+					if (nClasses > 0)
+						for (int q = 0; q < c * c; q++) {
+							int k = cr.classes()[q];
+							if (k < 0) continue;
+							oneHot[(i * nClasses + k) * c * c + q] = 1;
+							clw[i * c * c + q] = 1;
+						}
 					if (exact) {
 						System.arraycopy(cr.exact(), 0, ex, i * c * c, c * c);
 						System.arraycopy(cr.exactWeight(), 0, exw, i * c * c, c * c);
@@ -145,7 +157,8 @@ public final class Learner {
 				}
 				try (NDManager sm = trainer.getManager().newSubManager(); GradientCollector gc = trainer.newGradientCollector()) {
 					BoxLoss.Targets tg = new BoxLoss.Targets(sm, b, c, c, bg, ph, pv, cons, s.weights);
-					if (outputs == 2) tg.optInstanceMap(sm, b, c, c, cen, cw);
+					if (instance) tg.optInstanceMap(sm, b, c, c, cen, cw);
+					if (nClasses > 0) tg.optClasses(sm, b, nClasses, c, c, oneHot, clw);
 					if (exact) tg.optExact(sm, b, c, c, ex, exw);
 					NDArray in = sm.create(x, new Shape(b, nc, c, c));
 					NDArray logits = trainer.forward(new NDList(in)).singletonOrThrow();
@@ -189,6 +202,7 @@ public final class Learner {
 			h.baseChannels = s.base;
 			h.levels = s.levels;
 			h.outputs = outputs;
+			if (nClasses > 0) h.classes = classes;
 			h.normLow = Normalise.LOW;
 			h.normHigh = Normalise.HIGH;
 			h.objectSize = from != null ? from.header().objectSize : median(sides);
@@ -270,6 +284,45 @@ public final class Learner {
 				sampler.useMaskTargets(i, tg, wt);
 			}
 		}
+	}
+
+	/**
+	 * The classes of the boxes, sorted by name; a model to continue from keeps its own classes, and
+	 * a box of a class it does not know is refused. Fewer than two classes: one kind of object.
+	 */
+	private List<String> classes(List<TrainingImage> images) {
+		java.util.TreeSet<String> given = new java.util.TreeSet<>();
+		for (TrainingImage ti : images) for (Box b : ti.boxes()) if (b.className() != null) given.add(b.className());
+		if (from == null) return new ArrayList<>(given);
+		List<String> known = from.header().classes == null ? List.of() : from.header().classes;
+		for (String g : given)
+			if (known.size() >= 2 && !known.contains(g))
+				throw new CorralException("The model knows the classes " + known + "; a box of class '" + g + "' cannot continue its learning");
+		return known.size() >= 2 ? known : List.of();
+	}
+
+	/**
+	 * The class index of each pixel inside a box of a known class (an outline: its pixels only);
+	 * -1 elsewhere, and where boxes of two classes overlap.
+	 */
+	static int[] classMap(Supervision sup, List<String> classes) {
+		int w = sup.width;
+		int[] map = new int[w * sup.height];
+		java.util.Arrays.fill(map, -1);
+		boolean[] clash = new boolean[map.length];
+		for (Box b : sup.boxes) {
+			int k = b.className() == null ? -1 : classes.indexOf(b.className());
+			if (k < 0) continue;
+			for (int y = b.y(); y < b.y1(); y++)
+				for (int x = b.x(); x < b.x1(); x++) {
+					if (b.isExact() && !b.inMask(x, y)) continue;
+					int i = y * w + x;
+					if (map[i] >= 0 && map[i] != k) clash[i] = true;
+					map[i] = k;
+				}
+		}
+		for (int i = 0; i < map.length; i++) if (clash[i]) map[i] = -1;
+		return map;
 	}
 
 	/** Never hand out a broken model: a loss that is not a number ends learning with a message. */

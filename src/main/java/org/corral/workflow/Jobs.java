@@ -104,7 +104,11 @@ public final class Jobs {
 	}
 
 	/** Label images (one per stack position), per-box fits, and the first masked plane for pictures. */
-	public record BoxMaskOutcome(int[][] labels, BoxMasks.Fit[] fits, PlanarImage shown) {}
+	public record BoxMaskOutcome(int[][] labels, BoxMasks.Fit[] fits, PlanarImage shown, String[] classes, double[] classConfidence) {
+		public BoxMaskOutcome(int[][] labels, BoxMasks.Fit[] fits, PlanarImage shown) {
+			this(labels, fits, shown, null, null);
+		}
+	}
 
 	/** Masks the boxes of one image (all stack positions); label k = the k-th box of {@code all}. */
 	public static BoxMaskOutcome maskBoxes(ImagePlus imp, List<Box> all, ModelRunner model) {
@@ -118,6 +122,8 @@ public final class Jobs {
 		int[][] labels = new int[n][];
 		BoxMasks.Fit[] fits = new BoxMasks.Fit[all.size()];
 		PlanarImage first = null;
+		String[] classes = null;
+		double[] classConfidence = null;
 		for (int p = 1; p <= n; p++) {
 			List<Box> bs = boxesAt(all, p, n);
 			labels[p - 1] = new int[w * h];
@@ -125,8 +131,26 @@ public final class Jobs {
 			int[] zt = ImageFiles.zt(imp, p);
 			PlanarImage raw = ImageFiles.planes(imp, zt[0], zt[1]);
 			if (first == null) first = raw;
-			float[] prob = model.probability(raw, model.scaleFor(ModelRunner.medianSide(bs)), null, ModelRunner.BOX_FLIPS);
+			float[][] maps = model.maps(raw, model.scaleFor(ModelRunner.medianSide(bs)), null, ModelRunner.BOX_FLIPS);
+			float[] prob = maps[0];
+			float[][] classMaps = model.classMaps(maps);
 			BoxMasks.Result r = BoxMasks.make(prob, w, h, bs, options);
+			if (classMaps.length > 0) { // each box's class: the one given with it, else the class maps' choice
+				if (classes == null) {
+					classes = new String[all.size()];
+					classConfidence = new double[all.size()];
+					java.util.Arrays.fill(classConfidence, Double.NaN);
+				}
+				List<String> names = model.header().classes;
+				var assigned = org.corral.instances.ObjectClasses.of(r.labels(), bs.size(), classMaps);
+				for (int k = 0; k < bs.size(); k++) {
+					int g = all.indexOf(bs.get(k));
+					String given = bs.get(k).className();
+					int c = given != null ? names.indexOf(given) : assigned.index()[k + 1];
+					classes[g] = given != null ? given : c >= 0 ? names.get(c) : null;
+					classConfidence[g] = c < 0 ? Double.NaN : given != null ? org.corral.instances.ObjectClasses.share(r.labels(), k + 1, classMaps, c) : assigned.confidence()[k + 1];
+				}
+			}
 			int[] global = new int[bs.size()];
 			for (int k = 0; k < bs.size(); k++) {
 				global[k] = all.indexOf(bs.get(k)) + 1; // label value = position in the image's box list
@@ -138,7 +162,7 @@ public final class Jobs {
 		}
 		for (int k = 0; k < fits.length; k++)
 			if (fits[k] == null) fits[k] = BoxMasks.Fit.none(k + 1, all.get(k), "no-such-slice");
-		return new BoxMaskOutcome(labels, fits, first);
+		return new BoxMaskOutcome(labels, fits, first, classes, classConfidence);
 	}
 
 	/**
@@ -218,7 +242,7 @@ public final class Jobs {
 				ImagePlus imp = ImageFiles.open(img);
 				List<Box> boxes = boxed.get(img);
 				BoxMaskOutcome o = maskBoxes(imp, boxes, m, options);
-				writeOutputs(outDir, b, imp, o.labels(), boxes, o.fits(), o.shown());
+				writeOutputs(outDir, b, imp, o, boxes);
 				return String.format(Locale.ROOT, "%s: %d boxes masked in %.2f s", img.getFileName(), boxes.size(), (System.nanoTime() - t0) / 1e9);
 			});
 		if (share.isAll()) FolderMerge.writeObjects(outDir);
@@ -258,6 +282,11 @@ public final class Jobs {
 
 	/** Outline ROIs of box masks, named after their boxes so each leads back to its box. */
 	public static List<Roi> boxOutlines(int[][] labels, int w, int h, List<Box> boxes) {
+		return boxOutlines(labels, w, h, boxes, null);
+	}
+
+	/** As above; with {@code classes} (per box, or null), each outline is grouped and coloured by its class. */
+	public static List<Roi> boxOutlines(int[][] labels, int w, int h, List<Box> boxes, String[] classes) {
 		List<Roi> rois = new ArrayList<>();
 		String[] names = new String[boxes.size()];
 		for (int k = 0; k < boxes.size(); k++) names[k] = String.format(Locale.ROOT, "mask-%04d-of-%s", k + 1, boxes.get(k).name());
@@ -266,20 +295,55 @@ public final class Jobs {
 			for (int k = 0; k < outlines.length; k++) if (outlines[k] != null) {
 				if (labels.length > 1) outlines[k].setPosition(p + 1);
 				org.corral.boxes.RoiBoxes.setSourceBox(outlines[k], boxes.get(k)); // learning again after an edit finds the box
+				if (classes != null) classify(outlines[k], classes[k], classNames(classes));
 				rois.add(outlines[k]);
 			}
 		}
 		return rois;
 	}
 
+	/** Distinct class names in order of first appearance. */
+	static List<String> classNames(String[] classes) {
+		List<String> out = new ArrayList<>();
+		for (String c : classes) if (c != null && !out.contains(c)) out.add(c);
+		return out;
+	}
+
+	/**
+	 * Puts an outline in the ROI group of its class (1-based position in {@code names}), in that
+	 * group's colour, and records the class name ({@link #CLASS_PROPERTY}) for the group's name.
+	 */
+	static void classify(Roi roi, String cls, List<String> names) {
+		if (cls == null) return;
+		int g = names.indexOf(cls) + 1;
+		roi.setGroup(g);
+		roi.setStrokeColor(new java.awt.Color(Overlays.colour(g)));
+		roi.setProperty(CLASS_PROPERTY, cls);
+	}
+
+	/** ROI property holding an outline's class name. */
+	public static final String CLASS_PROPERTY = "corral-class";
+
+	/** Columns added to every table when the model knows classes. */
+	public static final List<String> CLASS_COLUMNS = List.of("class", "class_confidence");
+
 	/** The per-box table as CSV text (the same columns as the Fiji results table). */
 	public static String boxTable(List<Box> boxes, BoxMasks.Fit[] fits) {
-		StringBuilder csv = new StringBuilder(String.join(",", BOX_COLUMNS) + "\n");
+		return boxTable(boxes, fits, null, null);
+	}
+
+	/** As above, with a class and its confidence per box when the model knows classes. */
+	public static String boxTable(List<Box> boxes, BoxMasks.Fit[] fits, String[] classes, double[] classConfidence) {
+		StringBuilder csv = new StringBuilder(String.join(",", BOX_COLUMNS) + (classes != null ? "," + String.join(",", CLASS_COLUMNS) : "") + "\n");
 		for (int k = 0; k < boxes.size(); k++) {
 			Box b = boxes.get(k);
 			BoxMasks.Fit f = fits[k];
 			csv.append(String.format(Locale.ROOT, "%d,%s,%d,%d,%d,%d,%d,%d,%.4f,%.4f,%.4f,%.4f,%d,%s%n", k + 1, csvText(b.name()), b.x(), b.y(), b.width(), b.height(),
 				b.slice(), f.area(), f.fill(), f.rowsCrossed(), f.columnsCrossed(), f.meanProbability(), f.priorMet() ? 1 : 0, String.join(";", f.flags())));
+			if (classes != null) {
+				csv.setLength(csv.length() - System.lineSeparator().length());
+				csv.append(',').append(csvText(classes[k])).append(String.format(Locale.ROOT, ",%.4f%n", classConfidence[k]));
+			}
 		}
 		return csv.toString();
 	}
@@ -294,11 +358,12 @@ public final class Jobs {
 	public static final List<String> BOX_COLUMNS = List.of("box", "name", "x", "y", "width", "height", "slice", "area", "fill", "rows_crossed",
 		"columns_crossed", "mean_probability", "prior_met", "flags");
 
-	static void writeOutputs(Path outDir, String base, ImagePlus imp, int[][] labels, List<Box> boxes, BoxMasks.Fit[] fits, PlanarImage shown) {
+	static void writeOutputs(Path outDir, String base, ImagePlus imp, BoxMaskOutcome o, List<Box> boxes) {
 		int w = imp.getWidth(), h = imp.getHeight();
-		RoiSets.writeZip(OutputNames.outlines(outDir, base), boxOutlines(labels, w, h, boxes));
-		AtomicFiles.writeString(OutputNames.table(outDir, base), boxTable(boxes, fits));
-		if (shown != null) ImageFiles.savePng(Overlays.outlines(shown, labels[0]), OutputNames.overlay(outDir, base));
+		int[][] labels = o.labels();
+		RoiSets.writeZip(OutputNames.outlines(outDir, base), boxOutlines(labels, w, h, boxes, o.classes()));
+		AtomicFiles.writeString(OutputNames.table(outDir, base), boxTable(boxes, o.fits(), o.classes(), o.classConfidence()));
+		if (o.shown() != null) ImageFiles.savePng(Overlays.outlines(o.shown(), labels[0]), OutputNames.overlay(outDir, base));
 		ImageFiles.saveTiff(ImageFiles.labelImage(base, labels, w, h, imp.getCalibration()), OutputNames.labels(outDir, base)); // last: marks done
 	}
 
@@ -386,17 +451,23 @@ public final class Jobs {
 	}
 
 	/** One object of a whole-image result: its id in the label image, its stack position and its figures. */
-	public record ObjectRow(int id, int slice, org.corral.instances.ImageMasks.ObjectInfo info) {}
+	public record ObjectRow(int id, int slice, org.corral.instances.ImageMasks.ObjectInfo info, String className, double classConfidence) {
+		public ObjectRow(int id, int slice, org.corral.instances.ImageMasks.ObjectInfo info) {
+			this(id, slice, info, null, Double.NaN);
+		}
+	}
 
 	/** Whole-image result of one image: labels per stack position, outlines, proposed boxes, one row per object. */
-	public record WholeImageOutcome(int[][] labels, int count, List<Roi> outlines, List<Roi> proposals, List<ObjectRow> objects, PlanarImage shown) {
+	public record WholeImageOutcome(int[][] labels, int count, List<Roi> outlines, List<Roi> proposals, List<ObjectRow> objects, PlanarImage shown, boolean classes) {
 		/** The per-object table as written to {@code NAME.objects.csv}. */
 		public String table() {
-			StringBuilder csv = new StringBuilder(OBJECT_HEADER + "\n");
+			StringBuilder csv = new StringBuilder(OBJECT_HEADER + (classes ? "," + String.join(",", CLASS_COLUMNS) : "") + "\n");
 			for (ObjectRow r : objects) {
 				var oi = r.info();
-				csv.append(String.format(Locale.ROOT, "%d,%d,%d,%d,%d,%d,%d,%.4f,%.4f,%s%n", r.id(), r.slice(), oi.x(), oi.y(), oi.width(), oi.height(), oi.area(),
+				csv.append(String.format(Locale.ROOT, "%d,%d,%d,%d,%d,%d,%d,%.4f,%.4f,%s", r.id(), r.slice(), oi.x(), oi.y(), oi.width(), oi.height(), oi.area(),
 					oi.meanProbability(), oi.confidence(), String.join(";", oi.flags())));
+				if (classes) csv.append(',').append(csvText(r.className())).append(String.format(Locale.ROOT, ",%.4f", r.classConfidence()));
+				csv.append(System.lineSeparator());
 			}
 			return csv.toString();
 		}
@@ -417,24 +488,29 @@ public final class Jobs {
 			if (first == null) first = raw;
 			WholeImage.Outcome o = WholeImage.mask(model, raw, objectSize);
 			int[] lab = o.result().labels();
+			var assigned = org.corral.instances.ObjectClasses.of(lab, o.result().count(), o.classMaps());
 			for (int i = 0; i < lab.length; i++) if (lab[i] > 0) lab[i] += total; // ids unique across the stack
 			labels[p - 1] = lab;
 			String[] names = new String[total + o.result().count()];
 			for (org.corral.instances.ImageMasks.ObjectInfo oi : o.result().objects()) {
 				int id = oi.label() + total;
 				names[id - 1] = String.format(Locale.ROOT, "object-%04d", id);
-				rows.add(new ObjectRow(id, p, oi));
+				int c = assigned.index()[oi.label()];
+				rows.add(new ObjectRow(id, p, oi, c >= 0 ? model.header().classes.get(c) : null, c >= 0 ? assigned.confidence()[oi.label()] : Double.NaN));
 				Roi r = new Roi(oi.x(), oi.y(), oi.width(), oi.height());
 				r.setName(String.format(Locale.ROOT, "proposed-%04d", id));
 				if (n > 1) r.setPosition(p);
 				rects.add(r);
 			}
-			for (Roi r : RoiSets.outlines(lab, w, h, names.length, names)) if (r != null) {
-				if (n > 1) r.setPosition(p);
-				rois.add(r);
+			Roi[] outlines = RoiSets.outlines(lab, w, h, names.length, names);
+			for (int k = total; k < outlines.length; k++) if (outlines[k] != null) {
+				if (n > 1) outlines[k].setPosition(p);
+				int c = assigned.index()[k - total + 1];
+				if (c >= 0) classify(outlines[k], model.header().classes.get(c), model.header().classes);
+				rois.add(outlines[k]);
 			}
 			total += o.result().count();
 		}
-		return new WholeImageOutcome(labels, total, rois, rects, rows, first);
+		return new WholeImageOutcome(labels, total, rois, rects, rows, first, model.header().classCount() > 0);
 	}
 }

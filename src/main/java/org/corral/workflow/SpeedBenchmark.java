@@ -131,7 +131,7 @@ public final class SpeedBenchmark {
 					BoxMasks.make(p4, raw.width, raw.height, boxed.get(f), BoxMasks.Options.DEFAULTS);
 					fit.add(t, mp);
 					t = System.nanoTime();
-					ImageMasks.Result res = ImageMasks.make(maps[0], maps.length > 1 ? maps[1] : null, raw.width, raw.height, model.header().objectSize, ImageMasks.THRESHOLD,
+					ImageMasks.Result res = ImageMasks.make(maps[0], model.instanceMap(maps), raw.width, raw.height, model.header().objectSize, ImageMasks.THRESHOLD,
 						ImageMasks.PROMINENCE);
 					inst.add(t, mp);
 					// the library calls inside the instance stage, timed alone on the same mask

@@ -12,7 +12,8 @@ import org.corral.predict.ModelRunner;
 public final class WholeImage {
 	private WholeImage() {}
 
-	public record Outcome(ImageMasks.Result result, float[] probability, double scale) {}
+	/** The objects, the object probability, the scale used, and the class maps (none for one kind of object). */
+	public record Outcome(ImageMasks.Result result, float[] probability, double scale, float[][] classMaps) {}
 
 	/**
 	 * @param objectSize the typical object side in this image, in pixels, when known (0 = from the
@@ -25,7 +26,7 @@ public final class WholeImage {
 		double scale = objectSize > 0 ? model.scaleFor(objectSize) : byCalibration > 0 ? byCalibration : 1;
 		float[][] maps = model.maps(im, scale, null, ModelRunner.IMAGE_FLIPS);
 		double learned = model.header().objectSize;
-		ImageMasks.Result r = instances(maps, im, learned / scale);
+		ImageMasks.Result r = instances(maps[0], model.instanceMap(maps), im, learned / scale);
 		if (objectSize <= 0 && byCalibration == 0 && r.count() > 0) {
 			// objects cut at probability 0.5 look smaller than the boxes they were learned from: an
 			// estimate near the learned size is not trusted, only a clearly different one
@@ -34,10 +35,10 @@ public final class WholeImage {
 			if (s2 != 1) {
 				scale = s2;
 				maps = model.maps(im, scale, null, ModelRunner.IMAGE_FLIPS);
-				r = instances(maps, im, learned / scale);
+				r = instances(maps[0], model.instanceMap(maps), im, learned / scale);
 			}
 		}
-		return new Outcome(r, maps[0], scale);
+		return new Outcome(r, maps[0], scale, model.classMaps(maps));
 	}
 
 	/**
@@ -47,8 +48,8 @@ public final class WholeImage {
 	 */
 	public static final double ESTIMATE_TOLERANCE = 1.6;
 
-	static ImageMasks.Result instances(float[][] maps, PlanarImage im, double size) {
-		return ImageMasks.make(maps[0], maps.length > 1 ? maps[1] : null, im.width, im.height, size, ImageMasks.THRESHOLD, ImageMasks.PROMINENCE);
+	static ImageMasks.Result instances(float[] prob, float[] instanceMap, PlanarImage im, double size) {
+		return ImageMasks.make(prob, instanceMap, im.width, im.height, size, ImageMasks.THRESHOLD, ImageMasks.PROMINENCE);
 	}
 
 	public static List<Box> boxes(ImageMasks.Result r) {

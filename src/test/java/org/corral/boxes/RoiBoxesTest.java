@@ -100,6 +100,23 @@ class RoiBoxesTest {
 	}
 
 	@Test
+	void aBoxClassIsItsRoiGroupsName() {
+		Roi a = new Roi(1, 1, 10, 10), b = new Roi(20, 1, 10, 10), c = new Roi(40, 1, 10, 10);
+		a.setGroup(3);
+		b.setGroup(4);
+		String before = Roi.getGroupName(3);
+		Roi.setGroupName(3, "spore");
+		try {
+			List<Box> read = RoiBoxes.of(new Roi[] {a, b, c}, false).boxes();
+			assertEquals("spore", read.get(0).className(), "the group's name");
+			assertEquals("group-4", read.get(1).className(), "a group without a name");
+			assertNull(read.get(2).className(), "no group, no class");
+		} finally {
+			Roi.setGroupName(3, before);
+		}
+	}
+
+	@Test
 	void fingerprintsSurviveROISetFilesAndTheRoiManager() throws Exception {
 		Roi[] outlines = corralOutlines();
 		Path zip = dir.resolve("set.zip");
