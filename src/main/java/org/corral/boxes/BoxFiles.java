@@ -36,7 +36,7 @@ public final class BoxFiles {
 		}
 		if (lines.isEmpty()) throw new CorralException("Box file " + file + " is empty (expected a header row image,x,y,width,height)");
 		String[] header = split(stripBom(lines.get(0)));
-		int ci = -1, cx = -1, cy = -1, cw = -1, ch = -1, cs = -1, cm = -1, cc = -1;
+		int ci = -1, cx = -1, cy = -1, cw = -1, ch = -1, cs = -1, cm = -1, cc = -1, rcx = -1, rcy = -1, rl = -1, rb = -1, ra = -1;
 		Map<Path, ij.process.ImageProcessor[]> masks = new java.util.HashMap<>();
 		for (int i = 0; i < header.length; i++) {
 			switch (header[i].trim().toLowerCase(Locale.ROOT)) {
@@ -48,6 +48,11 @@ public final class BoxFiles {
 				case "slice" -> cs = i;
 				case "mask" -> cm = i;
 				case "class" -> cc = i;
+				case "centre_x" -> rcx = i;
+				case "centre_y" -> rcy = i;
+				case "length" -> rl = i;
+				case "breadth" -> rb = i;
+				case "angle" -> ra = i;
 				default -> { }
 			}
 		}
@@ -69,6 +74,19 @@ public final class BoxFiles {
 			if (f.length <= need) throw new CorralException(where + ": expected at least " + (need + 1) + " fields, found " + f.length);
 			String image = f[ci].trim();
 			if (image.isEmpty()) throw new CorralException(where + ": empty image name");
+			if (ra >= 0 && ra < f.length && !f[ra].isBlank()) { // a rotated box: centre, length, breadth, angle
+				if (rcx < 0 || rcy < 0 || rl < 0 || rb < 0)
+					throw new CorralException(where + ": a rotated box needs the columns centre_x, centre_y, length, breadth and angle");
+				double fcx = number(f, rcx, "centre_x", where), fcy = number(f, rcy, "centre_y", where), len = number(f, rl, "length", where),
+					br = number(f, rb, "breadth", where), ang = number(f, ra, "angle", where);
+				if (len <= 0 || br <= 0) throw new CorralException(where + ": length and breadth must be positive, found " + len + " x " + br);
+				int s = cs >= 0 && cs < f.length && !f[cs].isBlank() ? integer(f[cs], "slice", where) : 0;
+				List<Box> list = out.computeIfAbsent(image, k -> new ArrayList<>());
+				int index = list.size() + 1;
+				String cls = cc >= 0 && cc < f.length && !f[cc].isBlank() ? f[cc].trim() : null;
+				list.add(Box.rotated(index, new Box.Frame(fcx, fcy, len, br, ang), s, "box-" + index, cls));
+				continue;
+			}
 			int x = integer(f[cx], "x", where), y = integer(f[cy], "y", where);
 			int w = integer(f[cw], "width", where), h = integer(f[ch], "height", where);
 			int s = cs >= 0 && !f[cs].isBlank() ? integer(f[cs], "slice", where) : 0;
@@ -144,6 +162,17 @@ public final class BoxFiles {
 		if (roi.getName() != null && roi.getName().toLowerCase(Locale.ROOT).startsWith("region"))
 			throw new CorralException("ROI '" + roi.getName() + "' in " + where + ": an annotated region is read from the ROI Manager or the image's overlay, not from ROI-set files");
 		rois.add(roi);
+	}
+
+	private static double number(String[] f, int col, String column, String where) {
+		if (col >= f.length || f[col].isBlank()) throw new CorralException(where + ": empty " + column);
+		try {
+			double v = Double.parseDouble(f[col].trim());
+			if (!Double.isFinite(v)) throw new NumberFormatException();
+			return v;
+		} catch (NumberFormatException e) {
+			throw new CorralException(where + ": " + column + " '" + f[col].trim() + "' is not a number");
+		}
 	}
 
 	private static int integer(String s, String column, String where) {

@@ -54,6 +54,10 @@ public final class RoiBoxes {
 			}
 			Rectangle b = r.getBounds();
 			String cls = className(r);
+			if (r instanceof ij.gui.RotatedRectRoi rr) { // a tight box in its own frame
+				rects.add(Box.rotated(0, frameOf(rr), slice, name.isEmpty() ? null : name, cls));
+				continue;
+			}
 			if (isRectangle(r)) rects.add(new Box(0, b.x, b.y, b.width, b.height, slice, name.isEmpty() ? null : name, null, cls));
 			else outlines.add(new Box(0, b.x, b.y, b.width, b.height, slice, name.isEmpty() ? null : name, mask(r), cls));
 		}
@@ -66,7 +70,8 @@ public final class RoiBoxes {
 		List<Box> out = new ArrayList<>();
 		for (Box b : kept) {
 			int i = out.size() + 1;
-			out.add(new Box(i, b.x(), b.y(), b.width(), b.height(), b.slice(), b.name() != null ? b.name() : (b.isExact() ? "outline-" : "box-") + i, b.mask(), b.className()));
+			out.add(new Box(i, b.x(), b.y(), b.width(), b.height(), b.slice(), b.name() != null ? b.name() : (b.isExact() ? "outline-" : "box-") + i, b.mask(), b.className(),
+				b.frame()));
 		}
 		return new Read(out, regions);
 	}
@@ -99,6 +104,13 @@ public final class RoiBoxes {
 	/** Records on a box's outline the box it was masked from. */
 	public static void setSourceBox(Roi outline, Box b) {
 		outline.setProperty(SOURCE_BOX, b.x() + "," + b.y() + "," + b.width() + "," + b.height());
+	}
+
+	/** The frame of ImageJ's rotated rectangle: its long axis from (x1, y1) to (x2, y2), and its width across. */
+	public static Box.Frame frameOf(ij.gui.RotatedRectRoi r) {
+		double[] p = r.getParams();
+		double dx = p[2] - p[0], dy = p[3] - p[1];
+		return new Box.Frame((p[0] + p[2]) / 2, (p[1] + p[3]) / 2, Math.hypot(dx, dy), p[4], Math.toDegrees(Math.atan2(dy, dx)));
 	}
 
 	/** A plain rectangle (rounded corners make it an outline). */

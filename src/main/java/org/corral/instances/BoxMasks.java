@@ -73,6 +73,22 @@ public final class BoxMasks {
 				m = new boolean[b.width() * b.height()];
 				for (int y = 0; y < b.height(); y++)
 					for (int x = 0; x < b.width(); x++) m[y * b.width() + x] = b.inMask(x + b.x(), y + b.y());
+			} else if (b.isRotated()) { // fitted in the box's own frame, where it is a plain tight box
+				Box.Frame f = b.frame();
+				int lw = frameSide(f.length()), bh = frameSide(f.breadth());
+				float[] p = new float[lw * bh];
+				for (int j = 0; j < bh; j++)
+					for (int i = 0; i < lw; i++) {
+						double[] at = f.toImage(i + 0.5 - lw / 2.0, j + 0.5 - bh / 2.0);
+						p[j * lw + i] = bilinear(prob, w, h, at[0] - 0.5, at[1] - 0.5);
+					}
+				boolean[] fm = opt.fit() ? BoxFit.fit(p, lw, bh, opt.threshold(), opt.margin(), opt.fillMax()).mask() : threshold(p, opt.threshold());
+				m = new boolean[b.width() * b.height()];
+				for (int y = 0; y < b.height(); y++)
+					for (int x = 0; x < b.width(); x++) {
+						int[] ij = frameCell(f, x + b.x(), y + b.y(), lw, bh);
+						m[y * b.width() + x] = ij != null && fm[ij[1] * lw + ij[0]];
+					}
 			} else if (opt.fit()) {
 				float[] p = new float[b.width() * b.height()];
 				for (int y = 0; y < b.height(); y++)
@@ -81,11 +97,17 @@ public final class BoxMasks {
 			} else m = boxMask(prob, w, b, opt.threshold());
 			double cx = boxes.get(k - 1).centreX() - 0.5, cy = boxes.get(k - 1).centreY() - 0.5;
 			double rx = boxes.get(k - 1).width() / 2.0, ry = boxes.get(k - 1).height() / 2.0;
+			Box.Frame fr = boxes.get(k - 1).frame();
 			for (int y = 0; y < b.height(); y++)
 				for (int x = 0; x < b.width(); x++) {
 					if (!m[y * b.width() + x]) continue;
 					int i = (y + b.y()) * w + x + b.x();
 					double dx = (x + b.x() - cx) / rx, dy = (y + b.y() - cy) / ry;
+					if (fr != null) { // distance in the rotated box's own frame
+						double[] uv = fr.toFrame(x + b.x() + 0.5, y + b.y() + 0.5);
+						dx = uv[0] / (fr.length() / 2);
+						dy = uv[1] / (fr.breadth() / 2);
+					}
 					double d = dx * dx + dy * dy;
 					if (owner[i] == 0 || d < ownerDist[i]) {
 						owner[i] = k;
@@ -138,9 +160,58 @@ public final class BoxMasks {
 			if (Math.min(orig.width(), orig.height()) < 4) flags.add("tiny");
 			// the prior after fitting and sharing: every line crossed (margin lines excepted), not larger than allowed
 			boolean priorMet = area > 0 && BoxFit.crossed(m, bw, bh, opt.margin()) >= 1 && fill <= opt.fillMax() + 1e-9;
+			if (orig.isRotated()) { // the figures of a rotated box in its own frame
+				Box.Frame f = orig.frame();
+				int lw = frameSide(f.length()), fh = frameSide(f.breadth());
+				boolean[] fm = new boolean[lw * fh];
+				for (int y = 0; y < bh; y++)
+					for (int x = 0; x < bw; x++)
+						if (m[y * bw + x]) {
+							int[] ij = frameCell(f, x + b.x(), y + b.y(), lw, fh);
+							if (ij != null) fm[ij[1] * lw + ij[0]] = true;
+						}
+				boolean[] fr2 = new boolean[fh], fc2 = new boolean[lw];
+				for (int j = 0; j < fh; j++)
+					for (int i = 0; i < lw; i++) if (fm[j * lw + i]) { fr2[j] = true; fc2[i] = true; }
+				rf = count(fr2) / (double) fh;
+				cf = count(fc2) / (double) lw;
+				fill = area / (f.length() * f.breadth());
+				flags.remove("misses-sides");
+				flags.remove("low-fill");
+				if (area > 0 && fill < 0.25) flags.add("low-fill");
+				if (area > 0 && (rf < 0.9 || cf < 0.9)) flags.add("misses-sides");
+				priorMet = area > 0 && BoxFit.crossed(fm, lw, fh, opt.margin()) >= 1 && fill <= opt.fillMax() + 1e-9;
+			}
 			fits.add(new Fit(k, orig, area, fill, rf, cf, area > 0 ? psum / area : 0, priorMet, flags));
 		}
 		return new Result(labels, fits);
+	}
+
+	/** Pixels of a rotated box's frame grid along one side. */
+	static int frameSide(double side) {
+		return Math.max(1, (int) Math.round(side));
+	}
+
+	/** The frame grid cell (i along the length, j across) of image pixel (x, y), or null outside the frame. */
+	static int[] frameCell(Box.Frame f, int x, int y, int lw, int bh) {
+		double[] uv = f.toFrame(x + 0.5, y + 0.5);
+		int i = (int) Math.floor(uv[0] + lw / 2.0), j = (int) Math.floor(uv[1] + bh / 2.0);
+		return i < 0 || j < 0 || i >= lw || j >= bh ? null : new int[] {i, j};
+	}
+
+	static boolean[] threshold(float[] p, double t) {
+		boolean[] m = new boolean[p.length];
+		for (int i = 0; i < p.length; i++) m[i] = p[i] >= t;
+		return m;
+	}
+
+	/** Bilinear value at (x, y) in pixel-centre coordinates, clamped to the image. */
+	static float bilinear(float[] v, int w, int h, double x, double y) {
+		x = Math.max(0, Math.min(w - 1, x));
+		y = Math.max(0, Math.min(h - 1, y));
+		int x0 = (int) Math.floor(x), y0 = (int) Math.floor(y), x1 = Math.min(w - 1, x0 + 1), y1 = Math.min(h - 1, y0 + 1);
+		double fx = x - x0, fy = y - y0;
+		return (float) ((v[y0 * w + x0] * (1 - fx) + v[y0 * w + x1] * fx) * (1 - fy) + (v[y1 * w + x0] * (1 - fx) + v[y1 * w + x1] * fx) * fy);
 	}
 
 	/** The mask of one box on its own: threshold, best component, holes filled (box coordinates). */

@@ -83,7 +83,7 @@ public final class ModelRunner implements AutoCloseable {
 	}
 
 	public static double medianSide(List<Box> boxes) {
-		double[] v = boxes.stream().mapToDouble(b -> (b.width() + b.height()) / 2.0).sorted().toArray();
+		double[] v = boxes.stream().mapToDouble(Box::meanSide).sorted().toArray();
 		if (v.length == 0) return 0;
 		return v.length % 2 == 1 ? v[v.length / 2] : (v[v.length / 2 - 1] + v[v.length / 2]) / 2;
 	}

@@ -31,7 +31,7 @@ public final class BoxTightening {
 		if (margin <= 0) return boxes;
 		float[] g = grey(im);
 		List<Box> out = new ArrayList<>();
-		for (Box b : boxes) out.add(b.isExact() ? b : tighten(g, im.width, im.height, b, margin)); // an outline is exact already
+		for (Box b : boxes) out.add(b.isExact() || b.isRotated() ? b : tighten(g, im.width, im.height, b, margin)); // an outline is exact already
 		return out;
 	}
 

@@ -135,7 +135,8 @@ public final class Supervision {
 			byte[] inBox = new byte[width * height];
 			for (Box b : clipped)
 				for (int y = b.y(); y < b.y1(); y++)
-					java.util.Arrays.fill(inBox, y * width + b.x(), y * width + b.x1(), (byte) 1);
+					if (!b.isRotated()) java.util.Arrays.fill(inBox, y * width + b.x(), y * width + b.x1(), (byte) 1);
+					else for (int x = b.x(); x < b.x1(); x++) if (b.holds(x, y)) inBox[y * width + x] = 1; // the corners outside the frame are not the box's
 			byte[] bg = new byte[width * height];
 			if (mode == BackgroundMode.FULL) {
 				for (int i = 0; i < bg.length; i++) bg[i] = (byte) (inBox[i] == 0 && (region == null || region[i] != 0) ? 1 : 0);
@@ -152,7 +153,9 @@ public final class Supervision {
 					for (int i = 0; i < bg.length; i++) if (region[i] != 0 && inBox[i] == 0) bg[i] = 1;
 			}
 			List<Constraint> cs = new ArrayList<>();
-			for (Box b : clipped) if (!b.isExact()) addBox(cs, b); // an outline needs no prior: its pixels are known
+			// an outline needs no prior (its pixels are known); a rotated box gets its bands in crops
+			// turned to its own frame (train.CropSampler)
+			for (Box b : clipped) if (!b.isExact() && !b.isRotated()) addBox(cs, b);
 			byte[][] exact = exact(clipped);
 			return new Supervision(width, height, bg, inBox, cs, clipped, exact[0], exact[1]);
 		}

@@ -95,17 +95,34 @@ final class CropSampler {
 		byte[] known = p.sup().exactKnown, object = p.sup().exactObject;
 		int[] cls = p.classes() == null ? null : new int[s * s];
 		if (cls != null) java.util.Arrays.fill(cls, -1);
+		// a rotated box is learned in crops turned to its own frame, where it is a plain tight box
+		Box.Frame turn = centre.isRotated() ? centre.frame() : null;
+		int jx = ox - (int) Math.round(centre.centreX() - s / 2.0), jy = oy - (int) Math.round(centre.centreY() - s / 2.0);
+		int[] srcOf = new int[s * s]; // (transformed) crop pixel -> image pixel, -1 beyond the image
 		for (int y = 0; y < s; y++)
 			for (int x = 0; x < s; x++) {
-				int ix = ox + x, iy = oy + y;
-				boolean inside = ix >= 0 && iy >= 0 && ix < w && iy < h;
-				int sx = PlanarImage.mirror(ix, w), sy = PlanarImage.mirror(iy, h);
-				int src = sy * w + sx;
+				int ix, iy;
 				int dst = target(d, x, y, s);
-				for (int c = 0; c < nc; c++) {
-					ch[c][dst] = p.image().channels[c][src];
-					guide[c][dst] = p.guide().channels[c][src];
+				if (turn == null) {
+					ix = ox + x;
+					iy = oy + y;
+					int src = PlanarImage.mirror(iy, h) * w + PlanarImage.mirror(ix, w);
+					for (int c = 0; c < nc; c++) {
+						ch[c][dst] = p.image().channels[c][src];
+						guide[c][dst] = p.guide().channels[c][src];
+					}
+				} else {
+					double[] at = turn.toImage(x + 0.5 - s / 2.0 + jx, y + 0.5 - s / 2.0 + jy);
+					ix = (int) Math.floor(at[0]);
+					iy = (int) Math.floor(at[1]);
+					for (int c = 0; c < nc; c++) {
+						ch[c][dst] = bilinear(p.image().channels[c], w, h, at[0] - 0.5, at[1] - 0.5);
+						guide[c][dst] = bilinear(p.guide().channels[c], w, h, at[0] - 0.5, at[1] - 0.5);
+					}
 				}
+				boolean inside = ix >= 0 && iy >= 0 && ix < w && iy < h;
+				int src = iy * w + ix;
+				srcOf[dst] = inside ? src : -1;
 				if (inside) {
 					bg[dst] = p.sup().background[src];
 					inBox[dst] = p.sup().inBox[src];
@@ -122,8 +139,10 @@ final class CropSampler {
 			for (int i = 0; i < ch[c].length; i++) ch[c][i] = ch[c][i] * gain + off;
 		}
 		List<Box> inCrop = new ArrayList<>();
-		for (Box b : p.sup().boxes) {
-			if (b.isExact()) continue; // its pixels are known (ex, exw): no constraints
+		Box turned = turn == null ? null : inTurnedCrop(centre, jx, jy, s);
+		if (turned != null) inCrop.add(transform(d, turned, s)); // only the centre box is upright here
+		if (turn == null) for (Box b : p.sup().boxes) {
+			if (b.isExact() || b.isRotated()) continue; // outlines: pixels known (ex, exw); rotated boxes: in their own crops
 			int x0 = b.x() - ox, y0 = b.y() - oy;
 			if (x0 < 0 || y0 < 0 || x0 + b.width() > s || y0 + b.height() > s) continue;
 			inCrop.add(transform(d, new Box(b.index(), x0, y0, b.width(), b.height()), s));
@@ -140,13 +159,10 @@ final class CropSampler {
 		float[] cen = new float[s * s], cw = new float[s * s];
 		if (maskTarget[img] != null) {
 			float[] mt = maskTarget[img], mw = maskWeight[img];
-			for (int y = 0; y < s; y++)
-				for (int x = 0; x < s; x++) {
-					int ix = ox + x, iy = oy + y;
-					if (ix < 0 || iy < 0 || ix >= w || iy >= h) continue;
-					int dst = target(d, x, y, s);
-					cen[dst] = mt[iy * w + ix];
-					cw[dst] = mw[iy * w + ix];
+			for (int i = 0; i < srcOf.length; i++)
+				if (srcOf[i] >= 0) {
+					cen[i] = mt[srcOf[i]];
+					cw[i] = mw[srcOf[i]];
 				}
 			return new Crop(ch, bg, ph, pv, cons, cen, cw, ex, exw, cls);
 		}
@@ -154,9 +170,15 @@ final class CropSampler {
 		// early in learning, the instance map of every box that reaches into the crop is the cone of its
 		// inscribed ellipse (1 at the centre), in the crop's (transformed) frame
 		for (int i = 0; i < cw.length; i++) cw[i] = bg[i];
-		for (Box b : p.sup().boxes) {
-			if (b.x1() <= ox || b.y1() <= oy || b.x() >= ox + s || b.y() >= oy + s) continue;
-			Box t = transform(d, new Box(b.index(), b.x() - ox, b.y() - oy, b.width(), b.height()), s);
+		List<Box> upright = new ArrayList<>();
+		if (turn != null) {
+			if (turned != null) upright.add(turned);
+		} else for (Box b : p.sup().boxes) {
+			if (b.isRotated() || b.x1() <= ox || b.y1() <= oy || b.x() >= ox + s || b.y() >= oy + s) continue;
+			upright.add(new Box(b.index(), b.x() - ox, b.y() - oy, b.width(), b.height()));
+		}
+		for (Box u : upright) {
+			Box t = transform(d, u, s);
 			double cx = t.x() + t.width() / 2.0, cy = t.y() + t.height() / 2.0, rx = t.width() / 2.0, ry = t.height() / 2.0;
 			for (int y = Math.max(0, t.y()); y < Math.min(s, t.y1()); y++)
 				for (int x = Math.max(0, t.x()); x < Math.min(s, t.x1()); x++) {
@@ -168,6 +190,26 @@ final class CropSampler {
 				}
 		}
 		return new Crop(ch, bg, ph, pv, cons, cen, cw, ex, exw, cls);
+	}
+
+	/**
+	 * The rotated centre box as an upright box of the turned crop (before the flip/turn), when it
+	 * lies wholly inside: the crop pixels whose centres fall in its frame.
+	 */
+	static Box inTurnedCrop(Box b, int jx, int jy, int s) {
+		Box.Frame f = b.frame();
+		int x0 = (int) Math.ceil(s / 2.0 - jx - f.length() / 2 - 0.5), x1 = (int) Math.floor(s / 2.0 - jx + f.length() / 2 - 0.5);
+		int y0 = (int) Math.ceil(s / 2.0 - jy - f.breadth() / 2 - 0.5), y1 = (int) Math.floor(s / 2.0 - jy + f.breadth() / 2 - 0.5);
+		if (x0 < 0 || y0 < 0 || x1 >= s || y1 >= s || x1 < x0 || y1 < y0) return null;
+		return new Box(b.index(), x0, y0, x1 - x0 + 1, y1 - y0 + 1);
+	}
+
+	/** Bilinear value at (x, y) in pixel-centre coordinates, the image mirrored at its borders. */
+	static float bilinear(float[] v, int w, int h, double x, double y) {
+		int x0 = (int) Math.floor(x), y0 = (int) Math.floor(y);
+		double fx = x - x0, fy = y - y0;
+		int xa = PlanarImage.mirror(x0, w), xb = PlanarImage.mirror(x0 + 1, w), ya = PlanarImage.mirror(y0, h), yb = PlanarImage.mirror(y0 + 1, h);
+		return (float) ((v[ya * w + xa] * (1 - fx) + v[ya * w + xb] * fx) * (1 - fy) + (v[yb * w + xa] * (1 - fx) + v[yb * w + xb] * fx) * fy);
 	}
 
 	private static double dist2(float[][] g, int i, int j) {

@@ -84,7 +84,7 @@ public final class Learner {
 			Supervision sup = s.supervision().forImage(norm, ti.boxes(), ti.region());
 			if (sup.boxes.isEmpty()) continue;
 			nBoxes += sup.boxes.size();
-			for (Box b : ti.boxes()) sides.add((b.width() + b.height()) / 2.0); // as drawn: masking sees boxes drawn alike
+			for (Box b : ti.boxes()) sides.add(b.meanSide()); // as drawn: masking sees boxes drawn alike
 			prepared.add(new CropSampler.Prepared(ti.name(), norm, Resample.mean3(norm), sup, Normalise.bounds(ti.image(), Normalise.LOW, Normalise.HIGH),
 				classes.size() < 2 ? null : classMap(sup, classes)));
 		}
