@@ -27,18 +27,18 @@ final class LocalSlurm implements AutoCloseable {
 		this.conf = dir.resolve("slurm.conf");
 	}
 
-	static LocalSlurm start(Path dir) throws Exception {
+	static LocalSlurm start() throws Exception {
 		for (String tool : List.of("slurmctld", "slurmd", "sbatch", "squeue", "scontrol", "munged", "munge"))
 			if (run(List.of("sh", "-c", "command -v " + tool), Map.of(), 10).code != 0) return skip(tool + " is not installed (apt-get install slurm-wlm munge)");
 		if (!"0".equals(run(List.of("id", "-u"), Map.of(), 10).out.trim())) return skip("the daemons are configured to run as root, and this is not root");
 		if (!startMunge()) return skip("munged did not start: " + why);
-		LocalSlurm s = new LocalSlurm(dir);
+		LocalSlurm s = new LocalSlurm(Files.createTempDirectory("corral-slurm")); // not the test's folder: the daemons write into it until they stop
 		s.configure();
 		Map<String, String> env = s.env();
 		Result ctl = run(List.of("slurmctld", "-f", s.conf.toString()), env, 30);
 		Result d = run(List.of("slurmd", "-f", s.conf.toString()), env, 30);
-		s.pidFiles.add(dir.resolve("slurmctld.pid"));
-		s.pidFiles.add(dir.resolve("slurmd.pid"));
+		s.pidFiles.add(s.dir.resolve("slurmctld.pid"));
+		s.pidFiles.add(s.dir.resolve("slurmd.pid"));
 		long until = System.nanoTime() + TimeUnit.SECONDS.toNanos(60);
 		String state = "";
 		while (System.nanoTime() < until) {
@@ -46,7 +46,7 @@ final class LocalSlurm implements AutoCloseable {
 			if (state.equals("idle") || state.equals("mix")) return s;
 			Thread.sleep(500);
 		}
-		String logs = tail(dir.resolve("slurmctld.log")) + "\n" + tail(dir.resolve("slurmd.log"));
+		String logs = tail(s.dir.resolve("slurmctld.log")) + "\n" + tail(s.dir.resolve("slurmd.log"));
 		s.close();
 		return skip("the node did not come up (sinfo: '" + state + "'; slurmctld rc " + ctl.code + ", slurmd rc " + d.code + ")\n" + logs);
 	}
@@ -100,12 +100,30 @@ final class LocalSlurm implements AutoCloseable {
 		return false;
 	}
 
+	/**
+	 * Stops the daemons and waits until they are gone (slurmctld saves its state while it stops),
+	 * then removes the scratch folder.
+	 */
 	@Override
 	public void close() {
+		List<String> pids = new ArrayList<>();
 		for (Path p : pidFiles) try {
-			if (Files.isRegularFile(p)) run(List.of("kill", Files.readString(p).trim()), Map.of(), 10);
+			if (!Files.isRegularFile(p)) continue;
+			String pid = Files.readString(p).trim();
+			pids.add(pid);
+			run(List.of("kill", pid), Map.of(), 10);
 		} catch (Exception e) {
 			// already gone
+		}
+		try {
+			long until = System.nanoTime() + TimeUnit.SECONDS.toNanos(30);
+			for (String pid : pids)
+				while (System.nanoTime() < until && run(List.of("kill", "-0", pid), Map.of(), 10).code == 0) Thread.sleep(200);
+			try (var files = Files.walk(dir)) {
+				for (Path f : files.sorted(java.util.Comparator.reverseOrder()).toList()) Files.deleteIfExists(f);
+			}
+		} catch (Exception e) {
+			System.out.println("LocalSlurm: scratch folder " + dir + " left behind: " + e);
 		}
 	}
 

@@ -46,7 +46,7 @@ class SlurmClusterTest {
 		Path model = dir.resolve("model.zip");
 		Jobs.learn(BoxedImages.find(demo.resolve("images"), demo.resolve("boxes.csv")), null, ls, model, Progress.silent(), n -> {}).close();
 
-		try (LocalSlurm slurm = LocalSlurm.start(dir.resolve("slurm"))) {
+		try (LocalSlurm slurm = LocalSlurm.start()) {
 			if (slurm == null) System.out.println("SlurmClusterTest skipped: " + LocalSlurm.why);
 			Assumptions.assumeTrue(slurm != null, () -> "SLURM cannot start here: " + LocalSlurm.why);
 			List<String> launcher = SlurmScript.javaLauncher(System.getProperty("surefire.test.class.path", System.getProperty("java.class.path")));
