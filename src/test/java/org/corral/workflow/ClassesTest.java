@@ -5,7 +5,6 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import ij.ImagePlus;
 import ij.gui.Roi;
-import ij.process.ShortProcessor;
 
 import java.nio.file.Files;
 import java.nio.file.Path;
@@ -76,22 +75,13 @@ class ClassesTest {
 				cls.put(id, round ? "spore" : "hypha");
 				rows.add(String.format(Locale.ROOT, "%s,%d,%d,%d,%d,%s%n", name, bx0, by0, bx1 - bx0 + 1, by1 - by0 + 1, cls.get(id)));
 			}
-			ShortProcessor ip = new ShortProcessor(W, H), lp = new ShortProcessor(W, H);
-			for (int i = 0; i < W * H; i++) {
-				ip.set(i, (int) Math.round(1000 * Math.max(0, (img[i] == 0 ? 0.1 : img[i]) + 0.04 * gauss(rnd))));
-				lp.set(i, lab[i]);
-			}
-			ImageFiles.saveTiff(new ImagePlus(name, ip), set.resolve("images").resolve(name));
-			ImageFiles.saveTiff(new ImagePlus(name, lp), set.resolve("labels").resolve(name));
+			for (int i = 0; i < W * H; i++) if (img[i] == 0) img[i] = 0.1f; // background
+			InventedField.save(set, name, W, H, img, lab, 0.04, rnd);
 			rows.forEach(csv::append);
 			truth.put(name, cls);
 		}
 		Files.writeString(set.resolve("boxes.csv"), csv);
 		return truth;
-	}
-
-	private static double gauss(SplittableRandom r) {
-		return Math.sqrt(-2 * Math.log(1 - r.nextDouble())) * Math.cos(2 * Math.PI * r.nextDouble());
 	}
 
 	@Test

@@ -3,7 +3,6 @@ package org.corral.workflow;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import ij.ImagePlus;
-import ij.process.ShortProcessor;
 
 import java.nio.file.Files;
 import java.nio.file.Path;
@@ -68,7 +67,6 @@ class CorrectionsTest {
 					}
 				boxes.add(new int[] {bx0, by0, bx1 - bx0 + 1, by1 - by0 + 1});
 			}
-			ShortProcessor ip = new ShortProcessor(W, H), lp = new ShortProcessor(W, H);
 			float[] blurred = new float[W * H];
 			for (int y = 0; y < H; y++)
 				for (int x = 0; x < W; x++) {
@@ -82,20 +80,11 @@ class CorrectionsTest {
 						}
 					blurred[y * W + x] = (float) (s / c);
 				}
-			for (int i = 0; i < W * H; i++) {
-				ip.set(i, (int) Math.round(1000 * Math.max(0, blurred[i] + 0.03 * gauss(rnd))));
-				lp.set(i, lab[i]);
-			}
-			ImageFiles.saveTiff(new ImagePlus(name, ip), set.resolve("images").resolve(name));
-			ImageFiles.saveTiff(new ImagePlus(name, lp), set.resolve("labels").resolve(name));
+			InventedField.save(set, name, W, H, blurred, lab, 0.03, rnd);
 			for (int[] b : boxes) csv.append(String.format(Locale.ROOT, "%s,%d,%d,%d,%d%n", name, b[0], b[1], b[2], b[3]));
 		}
 		Files.writeString(set.resolve("boxes.csv"), csv);
 		return set;
-	}
-
-	private static double gauss(SplittableRandom r) {
-		return Math.sqrt(-2 * Math.log(1 - r.nextDouble())) * Math.cos(2 * Math.PI * r.nextDouble());
 	}
 
 	@Test

@@ -4,7 +4,6 @@ import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import ij.ImagePlus;
-import ij.process.ShortProcessor;
 
 import java.nio.file.Files;
 import java.nio.file.Path;
@@ -80,20 +79,11 @@ class RotatedBoxesTest {
 				upright.append(String.format(Locale.ROOT, "%s,%d,%d,%d,%d%n", name, bx0, by0, bx1 - bx0 + 1, by1 - by0 + 1));
 				rotated.append(String.format(Locale.ROOT, "%s,,,,,%.2f,%.2f,%.2f,%.2f,%.2f%n", name, f.cx(), f.cy(), len, br, a));
 			}
-			ShortProcessor ip = new ShortProcessor(W, H), lp = new ShortProcessor(W, H);
-			for (int i = 0; i < W * H; i++) {
-				ip.set(i, (int) Math.round(1000 * Math.max(0, (img[i] == 0 ? 0.1 : img[i]) + 0.04 * gauss(rnd))));
-				lp.set(i, lab[i]);
-			}
-			ImageFiles.saveTiff(new ImagePlus(name, ip), set.resolve("images").resolve(name));
-			ImageFiles.saveTiff(new ImagePlus(name, lp), set.resolve("labels").resolve(name));
+			for (int i = 0; i < W * H; i++) if (img[i] == 0) img[i] = 0.1f; // background
+			InventedField.save(set, name, W, H, img, lab, 0.04, rnd);
 		}
 		Files.writeString(set.resolve("upright.csv"), upright);
 		Files.writeString(set.resolve("rotated.csv"), rotated);
-	}
-
-	private static double gauss(SplittableRandom r) {
-		return Math.sqrt(-2 * Math.log(1 - r.nextDouble())) * Math.cos(2 * Math.PI * r.nextDouble());
 	}
 
 	/** Learns from the boxes of the first images and returns the per-object Dice of the last image's box masks. */
