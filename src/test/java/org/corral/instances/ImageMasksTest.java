@@ -53,4 +53,22 @@ class ImageMasksTest {
 		assertEquals(1, r.count());
 		assertTrue(r.objects().get(0).flags().contains("touches-border"));
 	}
+
+	@Test
+	void withAnInstanceMapAPaleObjectIsDroppedAndASureOneKept() {
+		float[] p = new float[W * H], map = new float[W * H];
+		disc(p, 20, 30, 9); // sure: 0.9 all through
+		for (int y = 0; y < H; y++) // pale: just above the threshold, as stroma that passes it
+			for (int x = 0; x < W; x++)
+				if ((x - 58) * (x - 58) + (y - 30) * (y - 30) <= 81) p[y * W + x] = 0.65f;
+		for (int y = 0; y < H; y++) // both rise to their core on the instance map
+			for (int x = 0; x < W; x++)
+				map[y * W + x] = (float) Math.max(0, Math.max(1 - Math.hypot(x - 20, y - 30) / 9, 1 - Math.hypot(x - 58, y - 30) / 9));
+		ImageMasks.Result r = ImageMasks.make(p, map, W, H, 18, 0.5, ImageMasks.PROMINENCE);
+		assertEquals(1, r.count(), "only the sure object stays");
+		assertTrue(r.labels()[30 * W + 20] > 0);
+		assertEquals(0, r.labels()[30 * W + 58]);
+		for (int i = 0; i < p.length; i++) if (p[i] > 0.6f && p[i] < 0.7f) p[i] = 0.85f;
+		assertEquals(2, ImageMasks.make(p, map, W, H, 18, 0.5, ImageMasks.PROMINENCE).count(), "a sure second object is kept");
+	}
 }
