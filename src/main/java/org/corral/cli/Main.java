@@ -405,8 +405,8 @@ public final class Main {
 		return new Progress() {
 			@Override
 			public void report(Report r) {
-				System.out.printf(Locale.ROOT, "step %4d/%d  loss %.4f (background %.4f, box constraints %.4f, pairwise %.4f)  met %.3f  t %.1f  %.2f s/step  %.0f s left%n",
-					r.step(), r.total(), r.loss(), r.background(), r.constraints(), r.pairwise(), r.met(), r.t(), r.secondsPerStep(), r.secondsLeft());
+				System.out.printf(Locale.ROOT, "step %4d/%d  loss %.4f (%s)  t %.1f  %.2f s/step  %.0f s left%n", r.step(), r.total(), r.loss(), r.partsLine(), r.t(),
+					r.secondsPerStep(), r.secondsLeft());
 			}
 
 			@Override

@@ -47,39 +47,42 @@ public final class ImageJProgress implements Progress {
 		}
 	}
 
-	/** The plot of the history so far (also used for screenshots). */
+	/** Line colours of the plot: the total first, then the parts in the order of the loss terms. */
+	private static final Color[] COLOURS = {new Color(30, 30, 30), new Color(0, 110, 200), new Color(220, 120, 0), new Color(150, 0, 150), new Color(0, 150, 60),
+		new Color(200, 40, 40), new Color(120, 120, 0), new Color(0, 140, 140), new Color(120, 70, 20)};
+
+	/** The plot of the history so far (also used for screenshots): the total and every part by name. */
 	public static Plot makePlot(List<Report> history) {
 		int n = history.size();
-		double[] step = new double[n], loss = new double[n], bg = new double[n], pair = new double[n], cons = new double[n], met = new double[n];
+		List<String> names = new java.util.ArrayList<>(history.get(n - 1).parts().keySet());
+		double[] step = new double[n];
+		double[][] lines = new double[names.size() + 1][n];
 		for (int i = 0; i < n; i++) {
 			Report r = history.get(i);
 			step[i] = r.step();
-			loss[i] = r.loss();
-			bg[i] = r.background();
-			pair[i] = r.pairwise();
-			cons[i] = r.constraints();
-			met[i] = r.met();
+			lines[0][i] = r.loss();
+			for (int k = 0; k < names.size(); k++) lines[k + 1][i] = r.part(names.get(k));
 		}
 		Plot p = new Plot("Corral learning", "step", "loss terms / fraction met");
-		p.setColor(new Color(30, 30, 30));
-		p.addPoints(step, loss, Plot.LINE);
-		p.setColor(new Color(0, 110, 200));
-		p.addPoints(step, bg, Plot.LINE);
-		p.setColor(new Color(220, 120, 0));
-		p.addPoints(step, pair, Plot.LINE);
-		p.setColor(new Color(150, 0, 150));
-		p.addPoints(step, cons, Plot.LINE);
-		p.setColor(new Color(0, 150, 60));
-		p.addPoints(step, met, Plot.LINE);
+		double low = 0, high = 1;
+		for (int k = 0; k < lines.length; k++) {
+			p.setColor(COLOURS[k % COLOURS.length]);
+			p.addPoints(step, lines[k], Plot.LINE);
+			for (double v : lines[k])
+				if (Double.isFinite(v)) {
+					low = Math.min(low, v);
+					high = Math.max(high, v);
+				}
+		}
 		p.setColor(Color.black);
-		p.addLegend("total loss\nbackground\npairwise\nbox constraints (barrier)\nfraction of constraints met");
-		double low = 0;
-		for (int i = 0; i < n; i++) low = Math.min(low, Math.min(cons[i], Math.min(loss[i], bg[i])));
-		double high = 1;
-		for (int i = 0; i < n; i++) high = Math.max(high, Math.max(loss[i], Math.max(bg[i], pair[i])));
+		p.addLegend("total loss\n" + String.join("\n", names.stream().map(ImageJProgress::legend).toList()));
 		// room above 1 so the fraction met (usually 1) shows as a line, not as the frame
 		p.setLimits(step[0], step[n - 1], low - 0.05, high + 0.08);
 		return p;
+	}
+
+	private static String legend(String part) {
+		return part.equals(org.corral.loss.ConstraintTerm.MET) ? "fraction of constraints met" : part;
 	}
 
 	public List<Report> history() {

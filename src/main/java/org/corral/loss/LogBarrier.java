@@ -30,8 +30,9 @@ public final class LogBarrier {
 	public static NDArray value(NDArray z, double t) {
 		// float scalars: a double would promote the whole graph to float64
 		float knee = (float) (-1 / (t * t));
-		NDArray barrier = z.neg().maximum((float) (1 / (t * t))).log().div((float) -t);
-		NDArray linear = z.mul((float) t).add((float) (-Math.log(1 / (t * t)) / t + 1 / t));
+		// constants as arrays that outlive the backward pass ({@link Scalars})
+		NDArray barrier = z.neg().maximum(Scalars.of(z, 1 / (t * t))).log().div(Scalars.of(z, -t));
+		NDArray linear = z.mul(Scalars.of(z, t)).add((float) (-Math.log(1 / (t * t)) / t + 1 / t));
 		return NDArrays.where(z.lte(knee), barrier, linear);
 	}
 }

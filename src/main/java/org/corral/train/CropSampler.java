@@ -6,6 +6,12 @@ import java.util.SplittableRandom;
 
 import org.corral.boxes.Box;
 import org.corral.image.PlanarImage;
+import org.corral.loss.BackgroundTerm;
+import org.corral.loss.ClassTerm;
+import org.corral.loss.CropTargets;
+import org.corral.loss.InstanceMapTerm;
+import org.corral.loss.OutlineTerm;
+import org.corral.loss.PairwiseTerm;
 import org.corral.supervision.Constraint;
 import org.corral.supervision.Supervision;
 
@@ -23,9 +29,8 @@ final class CropSampler {
 		}
 	}
 
-	/** One crop, ready for the batch arrays. */
-	record Crop(float[][] channels, float[] background, float[] pairH, float[] pairV, List<Constraint> constraints, float[] instance, float[] instanceWeight,
-		float[] exact, float[] exactWeight, int[] classes) {}
+	/** One crop: its pixels and what the loss knows of it. */
+	record Crop(float[][] channels, CropTargets targets) {}
 
 	/** How much more often crops centre on an outlined object than on a box (measured: README, corrections). */
 	static final int EXACT_OVERSAMPLE = 4;
@@ -36,13 +41,18 @@ final class CropSampler {
 	private final LearnSettings settings;
 	private final org.corral.supervision.SupervisionSettings recipe;
 	private final SplittableRandom rnd;
+	private final int nClasses;
 	/** Per image: the instance output's target and weight from the network's own box masks, or null (ellipses). */
 	private final float[][] maskTarget, maskWeight;
 	/** Continued learning: until mask targets exist, the instance output learns nothing (weight 0). */
 	private boolean keepInstanceMap;
 
-	CropSampler(List<Prepared> images, LearnSettings settings, SplittableRandom rnd) {
+	/**
+	 * @param nClasses number of classes when the images' {@link Prepared#classes} are given, else 0
+	 */
+	CropSampler(List<Prepared> images, LearnSettings settings, SplittableRandom rnd, int nClasses) {
 		this.images = images;
+		this.nClasses = nClasses;
 		this.size = settings.crop;
 		this.settings = settings;
 		this.recipe = settings.supervision();
@@ -164,9 +174,9 @@ final class CropSampler {
 					cen[i] = mt[srcOf[i]];
 					cw[i] = mw[srcOf[i]];
 				}
-			return new Crop(ch, bg, ph, pv, cons, cen, cw, ex, exw, cls);
+			return crop(ch, bg, ph, pv, cons, cen, cw, ex, exw, cls);
 		}
-		if (keepInstanceMap) return new Crop(ch, bg, ph, pv, cons, cen, cw, ex, exw, cls); // all weights 0
+		if (keepInstanceMap) return crop(ch, bg, ph, pv, cons, cen, cw, ex, exw, cls); // all weights 0
 		// early in learning, the instance map of every box that reaches into the crop is the cone of its
 		// inscribed ellipse (1 at the centre), in the crop's (transformed) frame
 		for (int i = 0; i < cw.length; i++) cw[i] = bg[i];
@@ -189,7 +199,30 @@ final class CropSampler {
 					cw[i] = 1;
 				}
 		}
-		return new Crop(ch, bg, ph, pv, cons, cen, cw, ex, exw, cls);
+		return crop(ch, bg, ph, pv, cons, cen, cw, ex, exw, cls);
+	}
+
+	/** The crop's planes under the names the loss terms read ({@link org.corral.loss.LossTerm#needs}). */
+	private Crop crop(float[][] ch, float[] bg, float[] ph, float[] pv, List<Constraint> cons, float[] cen, float[] cw, float[] ex, float[] exw, int[] cls) {
+		int s = size;
+		CropTargets t = new CropTargets(cons)
+			.optPlane(BackgroundTerm.PLANE, bg, 1, s, s)
+			.optPlane(PairwiseTerm.HORIZONTAL, ph, 1, s, s - 1)
+			.optPlane(PairwiseTerm.VERTICAL, pv, 1, s - 1, s)
+			.optPlane(InstanceMapTerm.TARGET, cen, 1, s, s)
+			.optPlane(InstanceMapTerm.WEIGHT, cw, 1, s, s)
+			.optPlane(OutlineTerm.TARGET, ex, 1, s, s)
+			.optPlane(OutlineTerm.WEIGHT, exw, 1, s, s);
+		if (cls != null) { // the class of each pixel as one-hot planes, and where it is known
+			float[] oneHot = new float[nClasses * s * s], known = new float[s * s];
+			for (int q = 0; q < cls.length; q++)
+				if (cls[q] >= 0) {
+					oneHot[cls[q] * s * s + q] = 1;
+					known[q] = 1;
+				}
+			t.optPlane(ClassTerm.ONE_HOT, oneHot, nClasses, s, s).optPlane(ClassTerm.WEIGHT, known, 1, s, s);
+		}
+		return new Crop(ch, t);
 	}
 
 	/**

@@ -18,8 +18,9 @@ import ai.djl.training.tracker.Tracker;
 
 import java.time.Instant;
 import java.util.ArrayList;
-import java.util.Arrays;
+import java.util.LinkedHashMap;
 import java.util.List;
+import java.util.Map;
 import java.util.SplittableRandom;
 import java.util.concurrent.CancellationException;
 
@@ -28,7 +29,12 @@ import org.corral.boxes.Box;
 import org.corral.image.Normalise;
 import org.corral.image.PlanarImage;
 import org.corral.image.Resample;
+import org.corral.loss.Batch;
 import org.corral.loss.BoxLoss;
+import org.corral.loss.ConstraintTerm;
+import org.corral.loss.CropTargets;
+import org.corral.loss.LossTerm;
+import org.corral.loss.Outputs;
 import org.corral.model.ModelHeader;
 import org.corral.net.UNet;
 import org.corral.supervision.Supervision;
@@ -69,7 +75,66 @@ public final class Learner {
 		return this;
 	}
 
+	/** The learning images as learning sees them, and what they hold. */
+	private record Prepared(List<CropSampler.Prepared> images, int channels, int boxes, int outlines, List<String> classes, List<Double> sides,
+		List<Double> microns) {}
+
+	/** What the report and the header need of the run so far. */
+	private static final class Run {
+		int total;
+		boolean shortened;
+		long start, warm;
+		Progress.Report last;
+	}
+
 	public Result learn(List<TrainingImage> images, Progress progress) {
+		Prepared prep = prepare(images);
+		checkStart(prep.channels());
+		Engine.getInstance().setRandomSeed((int) s.seed);
+		SplittableRandom rnd = new SplittableRandom(s.seed);
+		int nClasses = prep.classes().size() < 2 ? 0 : prep.classes().size();
+		CropSampler sampler = new CropSampler(prep.images(), s, rnd, nClasses);
+		boolean instance = from != null ? from.header().hasInstanceMap() : s.instanceMap;
+		int outputs = 1 + (instance ? 1 : 0) + nClasses;
+		UNet net = new UNet(prep.channels(), s.base, s.levels, outputs);
+		if (from != null && instance) sampler.keepInstanceMap(); // until new targets exist
+		List<LossTerm> terms = BoxLoss.terms(s.weights, prep.outlines() > 0, instance, nClasses);
+		Run run = new Run();
+		run.total = s.steps;
+		Model model = Model.newInstance("corral");
+		model.setBlock(net);
+		try (Trainer trainer = model.newTrainer(trainingConfig(run))) {
+			trainer.initialize(new Shape(s.batch, prep.channels(), s.crop, s.crop));
+			if (from != null) copyParameters(from.net(), net);
+			run.start = System.nanoTime();
+			run.warm = run.start;
+			Map<String, Double> acc = new LinkedHashMap<>();
+			int accN = 0;
+			for (int step = 1; step <= run.total; step++) {
+				if (progress.cancelled()) throw new CancellationException("learning cancelled at step " + step);
+				double t = tAt(step, run.total);
+				if (instance && step == maskTargetStep(run.total)) maskTargets(net, prep.images(), sampler, trainer.getManager());
+				accN += step(trainer, sampler, prep.channels(), terms, instance, nClasses, t, step, acc);
+				trainer.step();
+				fitTimeBudget(run, step);
+				if (step % s.reportEvery == 0 || step == run.total) {
+					report(run, step, t, acc, accN, progress);
+					acc.clear();
+					accN = 0;
+				}
+			}
+			ModelHeader h = header(prep, run, outputs, nClasses);
+			// keep the parameters alive after the trainer closes: move them to a manager we hand out
+			NDManager keep = NDManager.newBaseManager();
+			for (var pair : net.getParameters()) pair.getValue().getArray().attach(keep);
+			return new Result(net, h, keep);
+		} finally {
+			model.close(); // the parameters were moved to the manager handed out (or are dropped with it on failure)
+		}
+	}
+
+	/** Normalises every image and builds its supervision; refuses mixed channels and runs without boxes. */
+	private Prepared prepare(List<TrainingImage> images) {
 		if (images.isEmpty()) throw new CorralException("Nothing to learn from: no images");
 		int nc = images.get(0).image().nChannels();
 		int nBoxes = 0;
@@ -90,153 +155,116 @@ public final class Learner {
 		}
 		if (nBoxes == 0) throw new CorralException("Nothing to learn from: none of the " + images.size() + " image(s) has a box inside it");
 		int nExact = prepared.stream().mapToInt(p -> p.sup().exactCount()).sum();
-		boolean exact = nExact > 0;
+		return new Prepared(prepared, nc, nBoxes, nExact, classes, sides, microns);
+	}
 
-		Engine.getInstance().setRandomSeed((int) s.seed);
-		SplittableRandom rnd = new SplittableRandom(s.seed);
-		CropSampler sampler = new CropSampler(prepared, s, rnd);
+	private void checkStart(int nc) {
 		if (from != null && (from.header().inChannels != nc || from.header().baseChannels != s.base || from.header().levels != s.levels))
 			throw new CorralException("Cannot continue from the model: it was learned on " + from.header().inChannels + "-channel images with width "
 				+ from.header().baseChannels + " and " + from.header().levels + " levels; these images have " + nc + " channel(s)");
-		boolean instance = from != null ? from.header().hasInstanceMap() : s.instanceMap;
-		int nClasses = classes.size() < 2 ? 0 : classes.size();
-		int outputs = 1 + (instance ? 1 : 0) + nClasses;
-		UNet net = new UNet(nc, s.base, s.levels, outputs);
-		if (from != null && instance) sampler.keepInstanceMap(); // until new targets exist
-		int[] total = {s.steps};
-		boolean shortened = false;
-		Tracker lr = step -> (float) (s.learningRate * lrFactor(step, total[0]));
-		Model model = Model.newInstance("corral");
-		model.setBlock(net);
-		// DJL's config requires a loss; the trainer never calls it, BoxLoss is computed by hand below
-		DefaultTrainingConfig cfg = new DefaultTrainingConfig(Loss.l2Loss())
+	}
+
+	/** Adam with the warm-up and cosine schedule over the run's (possibly shortened) length. */
+	private DefaultTrainingConfig trainingConfig(Run run) {
+		Tracker lr = step -> (float) (s.learningRate * lrFactor(step, run.total));
+		// DJL's config requires a loss; the trainer never calls it, BoxLoss is computed by hand in step()
+		return new DefaultTrainingConfig(Loss.l2Loss())
 			.optOptimizer(Optimizer.adam().optLearningRateTracker(lr).build())
 			.optInitializer(new XavierInitializer(XavierInitializer.RandomType.GAUSSIAN, XavierInitializer.FactorType.IN, 2), Parameter.Type.WEIGHT)
 			.optDevices(new Device[] {Device.cpu()});
-		Progress.Report last = null;
-		try (Trainer trainer = model.newTrainer(cfg)) {
-			int b = s.batch, c = s.crop;
-			trainer.initialize(new Shape(b, nc, c, c));
-			if (from != null) { // same block structure: parameters (and batch-norm statistics) in the same order
-				var src = from.net().getParameters();
-				var to = net.getParameters();
-				for (int i = 0; i < to.size(); i++) src.get(i).getValue().getArray().copyTo(to.get(i).getValue().getArray());
-			}
-			long start = System.nanoTime(), warm = start;
-			double[] acc = new double[5];
-			int accN = 0;
-			for (int step = 1; step <= total[0]; step++) {
-				if (progress.cancelled()) throw new CancellationException("learning cancelled at step " + step);
-				double t = tAt(step, total[0]);
-				if (instance && step == maskTargetStep(total[0])) maskTargets(net, prepared, sampler, trainer.getManager());
-				float[] x = new float[b * nc * c * c], bg = new float[b * c * c], ph = new float[b * c * (c - 1)], pv = new float[b * (c - 1) * c];
-				float[] cen = new float[b * c * c], cw = new float[b * c * c];
-				float[] ex = exact ? new float[b * c * c] : null, exw = exact ? new float[b * c * c] : null;
-				float[] oneHot = nClasses > 0 ? new float[b * nClasses * c * c] : null, clw = nClasses > 0 ? new float[b * c * c] : null;
-				List<List<org.corral.supervision.Constraint>> cons = new ArrayList<>();
-				for (int i = 0; i < b; i++) {
-					CropSampler.Crop cr = sampler.next();
-					for (int ch = 0; ch < nc; ch++) System.arraycopy(cr.channels()[ch], 0, x, (i * nc + ch) * c * c, c * c);
-					System.arraycopy(cr.background(), 0, bg, i * c * c, c * c);
-					System.arraycopy(cr.pairH(), 0, ph, i * c * (c - 1), c * (c - 1));
-					System.arraycopy(cr.pairV(), 0, pv, i * (c - 1) * c, (c - 1) * c);
-					System.arraycopy(cr.instance(), 0, cen, i * c * c, c * c);
-					System.arraycopy(cr.instanceWeight(), 0, cw, i * c * c, c * c);
-					if (nClasses > 0)
-						for (int q = 0; q < c * c; q++) {
-							int k = cr.classes()[q];
-							if (k < 0) continue;
-							oneHot[(i * nClasses + k) * c * c + q] = 1;
-							clw[i * c * c + q] = 1;
-						}
-					if (exact) {
-						System.arraycopy(cr.exact(), 0, ex, i * c * c, c * c);
-						System.arraycopy(cr.exactWeight(), 0, exw, i * c * c, c * c);
-					}
-					cons.add(cr.constraints());
-				}
-				try (NDManager sm = trainer.getManager().newSubManager(); GradientCollector gc = trainer.newGradientCollector()) {
-					BoxLoss.Targets tg = new BoxLoss.Targets(sm, b, c, c, bg, ph, pv, cons, s.weights);
-					if (instance) tg.optInstanceMap(sm, b, c, c, cen, cw);
-					if (nClasses > 0) tg.optClasses(sm, b, nClasses, c, c, oneHot, clw);
-					if (exact) tg.optExact(sm, b, c, c, ex, exw);
-					NDArray in = sm.create(x, new Shape(b, nc, c, c));
-					NDArray logits = trainer.forward(new NDList(in)).singletonOrThrow();
-					BoxLoss.Parts p = BoxLoss.compute(logits, tg, t, s.weights);
-					float loss = p.total().getFloat();
-					requireFinite(loss, step, s.base);
-					gc.backward(p.total());
-					acc[0] += loss;
-					acc[1] += p.background().getFloat();
-					acc[2] += p.constraints().getFloat();
-					acc[3] += p.pairwise().getFloat();
-					acc[4] += p.met().getFloat();
-					accN++;
-				}
-				trainer.step();
-				double elapsed = (System.nanoTime() - start) / 1e9;
-				if (step == 2) warm = System.nanoTime();
-				if (s.minutes > 0 && step >= 12 && (step - 12) % 25 == 0) {
-					// the time budget is a cap: when the remaining steps will not fit, the run (and with it
-					// the t and learning-rate schedules) is shortened; the header records it
-					double sps = (System.nanoTime() - warm) / 1e9 / (step - 2);
-					int fit = (int) (step + (s.minutes * 60 - elapsed) / sps);
-					if (fit < total[0]) {
-						total[0] = Math.max(step + 1, fit);
-						shortened = true;
-					}
-				}
-				if (step % s.reportEvery == 0 || step == total[0]) {
-					double sps = elapsed / step;
-					Progress.Report r = new Progress.Report(step, total[0], acc[0] / accN, acc[1] / accN, acc[2] / accN, acc[3] / accN,
-						acc[4] / accN, t, sps, sps * (total[0] - step));
-					last = r;
-					progress.report(r);
-					Arrays.fill(acc, 0);
-					accN = 0;
-				}
-			}
-			ModelHeader h = new ModelHeader();
-			h.created = Instant.now().toString();
-			h.inChannels = nc;
-			h.baseChannels = s.base;
-			h.levels = s.levels;
-			h.outputs = outputs;
-			if (nClasses > 0) h.classes = classes;
-			h.normLow = Normalise.LOW;
-			h.normHigh = Normalise.HIGH;
-			h.objectSize = from != null ? from.header().objectSize : median(sides);
-			// the pixel size is remembered only when every learning image is calibrated alike
-			if (from != null) {
-				h.pixelSize = from.header().pixelSize;
-				h.pixelUnit = from.header().pixelUnit;
-			} else if (!microns.contains(0.0) && java.util.Collections.max(microns) < 1.01 * java.util.Collections.min(microns)) {
-				h.pixelSize = median(microns);
-				h.pixelUnit = "micron";
-			}
-			h.seed = s.seed;
-			h.training = s.asMap();
-			if (from != null) h.counts.put("continuedFrom", from.header().created);
-			h.counts.put("images", prepared.size());
-			h.counts.put("boxes", nBoxes);
-			h.counts.put("outlines", nExact);
-			h.counts.put("steps", total[0]);
-			h.counts.put("shortenedByTimeBudget", shortened);
-			h.counts.put("secondsPerStep", (System.nanoTime() - start) / 1e9 / total[0]);
-			if (last != null) {
-				h.scores.put("loss", last.loss());
-				h.scores.put("background", last.background());
-				h.scores.put("constraints", last.constraints());
-				h.scores.put("pairwise", last.pairwise());
-				h.scores.put("constraintsMet", last.met());
-			}
-			// keep the parameters alive after the trainer closes: move them to a manager we hand out
-			NDManager keep = NDManager.newBaseManager();
-			for (var pair : net.getParameters()) pair.getValue().getArray().attach(keep);
-			return new Result(net, h, keep);
-		} finally {
-			model.close(); // the parameters were moved to the manager handed out (or are dropped with it on failure)
+	}
+
+	/** Same block structure: parameters (and batch-norm statistics) in the same order. */
+	private static void copyParameters(UNet source, UNet target) {
+		var src = source.getParameters();
+		var to = target.getParameters();
+		for (int i = 0; i < to.size(); i++) src.get(i).getValue().getArray().copyTo(to.get(i).getValue().getArray());
+	}
+
+	/** One batch: crops drawn, forward, loss, backward; adds the parts to {@code acc} and returns 1. */
+	private int step(Trainer trainer, CropSampler sampler, int nc, List<LossTerm> terms, boolean instance, int nClasses, double t, int step, Map<String, Double> acc) {
+		int b = s.batch, c = s.crop;
+		float[] x = new float[b * nc * c * c];
+		List<CropTargets> targets = new ArrayList<>(b);
+		for (int i = 0; i < b; i++) {
+			CropSampler.Crop cr = sampler.next();
+			for (int ch = 0; ch < nc; ch++) System.arraycopy(cr.channels()[ch], 0, x, (i * nc + ch) * c * c, c * c);
+			targets.add(cr.targets());
 		}
+		try (NDManager sm = trainer.getManager().newSubManager(); GradientCollector gc = trainer.newGradientCollector()) {
+			NDArray in = sm.create(x, new Shape(b, nc, c, c));
+			NDArray logits = trainer.forward(new NDList(in)).singletonOrThrow();
+			BoxLoss.Value v = BoxLoss.compute(terms, new Outputs(logits, instance, nClasses), new Batch(sm, targets), t);
+			float loss = v.total().getFloat();
+			requireFinite(loss, step, s.base);
+			gc.backward(v.total());
+			acc.merge(LOSS, (double) loss, Double::sum);
+			for (String name : v.parts().keySet()) acc.merge(name, (double) v.part(name), Double::sum);
+		}
+		return 1;
+	}
+
+	private static final String LOSS = "loss";
+
+	/**
+	 * The time budget is a cap: when the remaining steps will not fit, the run (and with it the t and
+	 * learning-rate schedules) is shortened; the header records it.
+	 */
+	private void fitTimeBudget(Run run, int step) {
+		double elapsed = (System.nanoTime() - run.start) / 1e9;
+		if (step == 2) run.warm = System.nanoTime();
+		if (s.minutes > 0 && step >= 12 && (step - 12) % 25 == 0) {
+			double sps = (System.nanoTime() - run.warm) / 1e9 / (step - 2);
+			int fit = (int) (step + (s.minutes * 60 - elapsed) / sps);
+			if (fit < run.total) {
+				run.total = Math.max(step + 1, fit);
+				run.shortened = true;
+			}
+		}
+	}
+
+	private void report(Run run, int step, double t, Map<String, Double> acc, int n, Progress progress) {
+		double sps = (System.nanoTime() - run.start) / 1e9 / step;
+		Map<String, Double> parts = new LinkedHashMap<>();
+		for (var e : acc.entrySet()) if (!e.getKey().equals(LOSS)) parts.put(e.getKey(), e.getValue() / n);
+		run.last = new Progress.Report(step, run.total, acc.get(LOSS) / n, parts, t, sps, sps * (run.total - step));
+		progress.report(run.last);
+	}
+
+	private ModelHeader header(Prepared prep, Run run, int outputs, int nClasses) {
+		ModelHeader h = new ModelHeader();
+		h.created = Instant.now().toString();
+		h.inChannels = prep.channels();
+		h.baseChannels = s.base;
+		h.levels = s.levels;
+		h.outputs = outputs;
+		if (nClasses > 0) h.classes = prep.classes();
+		h.normLow = Normalise.LOW;
+		h.normHigh = Normalise.HIGH;
+		h.objectSize = from != null ? from.header().objectSize : median(prep.sides());
+		// the pixel size is remembered only when every learning image is calibrated alike
+		List<Double> microns = prep.microns();
+		if (from != null) {
+			h.pixelSize = from.header().pixelSize;
+			h.pixelUnit = from.header().pixelUnit;
+		} else if (!microns.contains(0.0) && java.util.Collections.max(microns) < 1.01 * java.util.Collections.min(microns)) {
+			h.pixelSize = median(microns);
+			h.pixelUnit = "micron";
+		}
+		h.seed = s.seed;
+		h.training = s.asMap();
+		if (from != null) h.counts.put("continuedFrom", from.header().created);
+		h.counts.put("images", prep.images().size());
+		h.counts.put("boxes", prep.boxes());
+		h.counts.put("outlines", prep.outlines());
+		h.counts.put("steps", run.total);
+		h.counts.put("shortenedByTimeBudget", run.shortened);
+		h.counts.put("secondsPerStep", (System.nanoTime() - run.start) / 1e9 / run.total);
+		if (run.last != null) {
+			h.scores.put(LOSS, run.last.loss());
+			for (var e : run.last.parts().entrySet()) h.scores.put(e.getKey().equals(ConstraintTerm.MET) ? "constraintsMet" : e.getKey(), e.getValue());
+		}
+		return h;
 	}
 
 	/**

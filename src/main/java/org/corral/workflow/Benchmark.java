@@ -70,8 +70,8 @@ public final class Benchmark {
 		List<TrainingImage> ti = Jobs.trainingImages(learn);
 		Learner.Result r = new Learner(settings).learn(ti, rep -> {
 			if (rep.step() % 50 == 0 || rep.step() == rep.total())
-				log.accept(String.format(Locale.ROOT, "  step %d/%d loss %.4f bg %.4f cons %.4f pair %.4f met %.3f t %.1f %.2f s/step", rep.step(), rep.total(),
-					rep.loss(), rep.background(), rep.constraints(), rep.pairwise(), rep.met(), rep.t(), rep.secondsPerStep()));
+				log.accept(String.format(Locale.ROOT, "  step %d/%d loss %.4f (%s) t %.1f %.2f s/step", rep.step(), rep.total(), rep.loss(), rep.partsLine(), rep.t(),
+					rep.secondsPerStep()));
 		});
 		double learnSeconds = (System.nanoTime() - t0) / 1e9;
 		double sps = ((Number) r.header().counts.get("secondsPerStep")).doubleValue();
