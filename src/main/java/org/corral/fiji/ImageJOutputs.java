@@ -15,6 +15,9 @@ import org.corral.instances.BoxMasks;
 import org.corral.io.ImageFiles;
 import org.corral.io.Overlays;
 import org.corral.score.Scores;
+import org.corral.workflow.Jobs;
+import org.corral.workflow.ResultTables;
+import org.corral.workflow.Table;
 
 /** Results back into ImageJ: label images with our lookup table, outline ROIs, results tables. */
 public final class ImageJOutputs {
@@ -62,58 +65,26 @@ public final class ImageJOutputs {
 		}
 	}
 
-	public static ResultsTable boxTable(List<Box> boxes, BoxMasks.Fit[] fits) {
-		return boxTable(boxes, fits, null, null);
-	}
-
-	/** As above, with the class columns when the model knows classes. */
+	/** The per-box table, with the columns of {@code NAME.boxes.csv}; the class columns when the model knows classes. */
 	public static ResultsTable boxTable(List<Box> boxes, BoxMasks.Fit[] fits, String[] classes, double[] classConfidence) {
-		ResultsTable rt = new ResultsTable();
-		for (int k = 0; k < boxes.size(); k++) {
-			Box b = boxes.get(k);
-			BoxMasks.Fit f = fits[k];
-			rt.incrementCounter();
-			rt.addValue("box", k + 1);
-			rt.addValue("name", b.name());
-			rt.addValue("x", b.x());
-			rt.addValue("y", b.y());
-			rt.addValue("width", b.width());
-			rt.addValue("height", b.height());
-			rt.addValue("slice", b.slice());
-			rt.addValue("area", f.area());
-			rt.addValue("fill", f.fill());
-			rt.addValue("rows_crossed", f.rowsCrossed());
-			rt.addValue("columns_crossed", f.columnsCrossed());
-			rt.addValue("mean_probability", f.meanProbability());
-			rt.addValue("prior_met", f.priorMet() ? 1 : 0);
-			rt.addValue("flags", String.join(";", f.flags()));
-			if (classes != null) {
-				rt.addValue("class", classes[k] == null ? "" : classes[k]);
-				rt.addValue("class_confidence", classConfidence[k]);
-			}
-		}
-		return rt;
+		return resultsTable(ResultTables.boxes(classes != null), ResultTables.boxRows(boxes, fits, classes, classConfidence));
 	}
 
 	/** The per-object table of a whole-image result, with the columns of {@code NAME.objects.csv}. */
-	public static ResultsTable objectTable(java.util.List<org.corral.workflow.Jobs.ObjectRow> rows) {
+	public static ResultsTable objectTable(List<Jobs.ObjectRow> rows, boolean classes) {
+		return resultsTable(ResultTables.objects(classes), rows);
+	}
+
+	/** A table rendered as an ImageJ results table: numbers as values, text as strings. */
+	static <R> ResultsTable resultsTable(Table<R> table, List<R> rows) {
 		ResultsTable rt = new ResultsTable();
-		for (var r : rows) {
-			var o = r.info();
+		for (R r : rows) {
 			rt.incrementCounter();
-			rt.addValue("object", r.id());
-			rt.addValue("slice", r.slice());
-			rt.addValue("x", o.x());
-			rt.addValue("y", o.y());
-			rt.addValue("width", o.width());
-			rt.addValue("height", o.height());
-			rt.addValue("area", o.area());
-			rt.addValue("mean_probability", o.meanProbability());
-			rt.addValue("confidence", o.confidence());
-			rt.addValue("flags", String.join(";", o.flags()));
-			if (r.className() != null || !Double.isNaN(r.classConfidence())) {
-				rt.addValue("class", r.className() == null ? "" : r.className());
-				rt.addValue("class_confidence", r.classConfidence());
+			for (Table.Column<R> c : table.columns()) {
+				Object v = c.cell().apply(r);
+				if (v instanceof Number n) rt.addValue(c.name(), n.doubleValue());
+				else if (v instanceof Boolean b) rt.addValue(c.name(), b ? 1 : 0);
+				else rt.addValue(c.name(), v == null ? "" : v.toString());
 			}
 		}
 		return rt;

@@ -46,7 +46,7 @@ public class MasksForWholeImage implements Command {
 		labels = ImageJOutputs.labelImage(image.getShortTitle() + "-objects", o.labels(), image);
 		ImageJOutputs.showOutlines(image, o.outlines(), false);
 		if (propose) ImageJOutputs.showOutlines(image, o.proposals(), true);
-		objects = ImageJOutputs.objectTable(o.objects());
+		objects = ImageJOutputs.objectTable(o.objects(), o.classes());
 		ImageJOutputs.show(objects, "Corral objects");
 	}
 }

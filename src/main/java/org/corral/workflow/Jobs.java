@@ -324,39 +324,16 @@ public final class Jobs {
 	/** ROI property holding an outline's class name. */
 	public static final String CLASS_PROPERTY = "corral-class";
 
-	/** Columns added to every table when the model knows classes. */
-	public static final List<String> CLASS_COLUMNS = List.of("class", "class_confidence");
-
-	/** The per-box table as CSV text (the same columns as the Fiji results table). */
-	public static String boxTable(List<Box> boxes, BoxMasks.Fit[] fits) {
-		return boxTable(boxes, fits, null, null);
-	}
-
-	/** As above, with a class and its confidence per box when the model knows classes. */
+	/** The per-box table as CSV text ({@link ResultTables#boxes}, the columns of the Fiji table too). */
 	public static String boxTable(List<Box> boxes, BoxMasks.Fit[] fits, String[] classes, double[] classConfidence) {
-		StringBuilder csv = new StringBuilder(String.join(",", BOX_COLUMNS) + (classes != null ? "," + String.join(",", CLASS_COLUMNS) : "") + "\n");
-		for (int k = 0; k < boxes.size(); k++) {
-			Box b = boxes.get(k);
-			BoxMasks.Fit f = fits[k];
-			csv.append(String.format(Locale.ROOT, "%d,%s,%d,%d,%d,%d,%d,%d,%.4f,%.4f,%.4f,%.4f,%d,%s%n", k + 1, csvText(b.name()), b.x(), b.y(), b.width(), b.height(),
-				b.slice(), f.area(), f.fill(), f.rowsCrossed(), f.columnsCrossed(), f.meanProbability(), f.priorMet() ? 1 : 0, String.join(";", f.flags())));
-			if (classes != null) {
-				csv.setLength(csv.length() - System.lineSeparator().length());
-				csv.append(',').append(csvText(classes[k])).append(String.format(Locale.ROOT, ",%.4f%n", classConfidence[k]));
-			}
-		}
-		return csv.toString();
+		return ResultTables.boxes(classes != null).csv(ResultTables.boxRows(boxes, fits, classes, classConfidence));
 	}
 
-	/** A text cell for CSV (RFC 4180): quoted when it holds a comma, quote or line break. */
 	static String csvText(String s) {
-		if (s == null) return "";
-		if (s.indexOf(',') < 0 && s.indexOf('"') < 0 && s.indexOf('\n') < 0) return s;
-		return '"' + s.replace("\"", "\"\"") + '"';
+		return Table.text(s);
 	}
 
-	public static final List<String> BOX_COLUMNS = List.of("box", "name", "x", "y", "width", "height", "slice", "area", "fill", "rows_crossed",
-		"columns_crossed", "mean_probability", "prior_met", "flags");
+	public static final List<String> BOX_COLUMNS = ResultTables.boxes(false).header();
 
 	static void writeOutputs(Path outDir, String base, ImagePlus imp, BoxMaskOutcome o, List<Box> boxes) {
 		int w = imp.getWidth(), h = imp.getHeight();
@@ -459,21 +436,13 @@ public final class Jobs {
 
 	/** Whole-image result of one image: labels per stack position, outlines, proposed boxes, one row per object. */
 	public record WholeImageOutcome(int[][] labels, int count, List<Roi> outlines, List<Roi> proposals, List<ObjectRow> objects, PlanarImage shown, boolean classes) {
-		/** The per-object table as written to {@code NAME.objects.csv}. */
+		/** The per-object table as written to {@code NAME.objects.csv} ({@link ResultTables#objects}). */
 		public String table() {
-			StringBuilder csv = new StringBuilder(OBJECT_HEADER + (classes ? "," + String.join(",", CLASS_COLUMNS) : "") + "\n");
-			for (ObjectRow r : objects) {
-				var oi = r.info();
-				csv.append(String.format(Locale.ROOT, "%d,%d,%d,%d,%d,%d,%d,%.4f,%.4f,%s", r.id(), r.slice(), oi.x(), oi.y(), oi.width(), oi.height(), oi.area(),
-					oi.meanProbability(), oi.confidence(), String.join(";", oi.flags())));
-				if (classes) csv.append(',').append(csvText(r.className())).append(String.format(Locale.ROOT, ",%.4f", r.classConfidence()));
-				csv.append(System.lineSeparator());
-			}
-			return csv.toString();
+			return ResultTables.objects(classes).csv(objects);
 		}
 	}
 
-	public static final String OBJECT_HEADER = "object,slice,x,y,width,height,area,mean_probability,confidence,flags";
+	public static final String OBJECT_HEADER = String.join(",", ResultTables.objects(false).header());
 
 	public static WholeImageOutcome maskWhole(ImagePlus imp, ModelRunner model, double objectSize) {
 		int n = ImageFiles.positions(imp), w = imp.getWidth(), h = imp.getHeight();
