@@ -1,7 +1,6 @@
 package org.corral.loss;
 
 import ai.djl.ndarray.NDArray;
-import ai.djl.nn.Activation;
 
 import java.util.Set;
 
@@ -31,8 +30,6 @@ public record InstanceMapTerm() implements LossTerm {
 
 	@Override
 	public NDArray compute(Outputs out, Batch batch, Context context) {
-		NDArray c = out.instanceMap(), t = batch.plane(TARGET), w = batch.plane(WEIGHT);
-		// softplus(x) - x t, where the target is known
-		return Activation.softPlus(c).sub(c.mul(t)).mul(w).sum().div(w.sum().maximum(1f));
+		return OutlineTerm.crossEntropy(out.instanceMap(), batch.plane(TARGET), batch.plane(WEIGHT));
 	}
 }

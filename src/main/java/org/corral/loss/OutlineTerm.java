@@ -31,8 +31,14 @@ public record OutlineTerm() implements LossTerm {
 
 	@Override
 	public NDArray compute(Outputs out, Batch batch, Context context) {
-		NDArray x = out.object(), t = batch.plane(TARGET), w = batch.plane(WEIGHT);
-		// cross-entropy with a 0/1 target: softplus(x) - x t
+		return crossEntropy(out.object(), batch.plane(TARGET), batch.plane(WEIGHT));
+	}
+
+	/**
+	 * Binary cross-entropy of logits x against targets t in [0, 1], averaged over the pixels of weight
+	 * 1: softplus(x) - x t, stable for large x (also the instance map's term).
+	 */
+	static NDArray crossEntropy(NDArray x, NDArray t, NDArray w) {
 		return Activation.softPlus(x).sub(x.mul(t)).mul(w).sum().div(w.sum().maximum(1f));
 	}
 }

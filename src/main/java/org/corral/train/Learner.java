@@ -114,7 +114,8 @@ public final class Learner {
 				if (progress.cancelled()) throw new CancellationException("learning cancelled at step " + step);
 				double t = tAt(step, run.total);
 				if (instance && step == maskTargetStep(run.total)) maskTargets(net, prep.images(), sampler, trainer.getManager());
-				accN += step(trainer, sampler, prep.channels(), terms, instance, nClasses, t, step, acc);
+				step(trainer, sampler, prep.channels(), terms, instance, nClasses, t, step, acc);
+				accN++;
 				trainer.step();
 				fitTimeBudget(run, step);
 				if (step % s.reportEvery == 0 || step == run.total) {
@@ -181,8 +182,8 @@ public final class Learner {
 		for (int i = 0; i < to.size(); i++) src.get(i).getValue().getArray().copyTo(to.get(i).getValue().getArray());
 	}
 
-	/** One batch: crops drawn, forward, loss, backward; adds the parts to {@code acc} and returns 1. */
-	private int step(Trainer trainer, CropSampler sampler, int nc, List<LossTerm> terms, boolean instance, int nClasses, double t, int step, Map<String, Double> acc) {
+	/** One batch: crops drawn, forward, loss, backward; adds the loss and its parts to {@code acc}. */
+	private void step(Trainer trainer, CropSampler sampler, int nc, List<LossTerm> terms, boolean instance, int nClasses, double t, int step, Map<String, Double> acc) {
 		int b = s.batch, c = s.crop;
 		float[] x = new float[b * nc * c * c];
 		List<CropTargets> targets = new ArrayList<>(b);
@@ -201,7 +202,6 @@ public final class Learner {
 			acc.merge(LOSS, (double) loss, Double::sum);
 			for (String name : v.parts().keySet()) acc.merge(name, (double) v.part(name), Double::sum);
 		}
-		return 1;
 	}
 
 	private static final String LOSS = "loss";

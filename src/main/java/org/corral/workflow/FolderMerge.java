@@ -78,7 +78,7 @@ public final class FolderMerge {
 			} else if (!header.equals(lines.get(0)))
 				throw new CorralException("The object tables in " + outDir + " come from different jobs (" + t.getFileName() + " has other columns): use one output folder per job");
 			for (String row : lines.subList(1, lines.size())) {
-				out.append(Jobs.csvText(base)).append(',').append(row).append('\n');
+				out.append(Table.text(base)).append(',').append(row).append('\n');
 				rows++;
 			}
 		}

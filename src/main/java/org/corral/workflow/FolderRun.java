@@ -88,7 +88,7 @@ public final class FolderRun {
 		}
 		else {
 			StringBuilder f = new StringBuilder("image,error\n");
-			failed.forEach((k, v) -> f.append(Jobs.csvText(k)).append(',').append(Jobs.csvText(v)).append('\n'));
+			failed.forEach((k, v) -> f.append(Table.text(k)).append(',').append(Table.text(v)).append('\n'));
 			AtomicFiles.writeString(failures, f.toString());
 		}
 		return new Report(written, skipped, failed);

@@ -329,10 +329,6 @@ public final class Jobs {
 		return ResultTables.boxes(classes != null).csv(ResultTables.boxRows(boxes, fits, classes, classConfidence));
 	}
 
-	static String csvText(String s) {
-		return Table.text(s);
-	}
-
 	public static final List<String> BOX_COLUMNS = ResultTables.boxes(false).header();
 
 	static void writeOutputs(Path outDir, String base, ImagePlus imp, BoxMaskOutcome o, List<Box> boxes) {
