@@ -52,9 +52,22 @@ public final class Normalise {
 		return new float[] {lo, hi};
 	}
 
+	/**
+	 * A part of an image (a band of rows) normalised as the whole image is: with the whole image's
+	 * raw bounds ({@link #bounds(PlanarImage, double, double)}), not the part's own percentiles.
+	 */
+	public static PlanarImage with(PlanarImage im, float[][] bounds) {
+		float[][] out = new float[im.nChannels()][];
+		for (int c = 0; c < im.nChannels(); c++) out[c] = apply(im.channels[c], bounds[0][c], bounds[1][c]);
+		return new PlanarImage(im.width, im.height, out);
+	}
+
 	static float[] channel(float[] v, double low, double high) {
 		float[] lh = bounds(v, low, high);
-		float lo = lh[0], hi = lh[1];
+		return apply(v, lh[0], lh[1]);
+	}
+
+	private static float[] apply(float[] v, float lo, float hi) {
 		float scale = hi > lo ? 1f / (hi - lo) : 0f;
 		float[] out = new float[v.length];
 		for (int i = 0; i < v.length; i++) {

@@ -21,6 +21,17 @@ public final class PlanarImage {
 		return new PlanarImage(width, height, new float[nChannels][width * height]);
 	}
 
+	/** A copy of rows {@code y0 .. y1 - 1}, with the calibration. */
+	public PlanarImage rows(int y0, int y1) {
+		if (y0 < 0 || y1 > height || y0 >= y1) throw new IllegalArgumentException("rows " + y0 + ".." + y1 + " of an image of " + height);
+		float[][] c = new float[channels.length][];
+		for (int k = 0; k < c.length; k++) c[k] = java.util.Arrays.copyOfRange(channels[k], y0 * width, y1 * width);
+		PlanarImage p = new PlanarImage(width, y1 - y0, c);
+		p.pixelWidth = pixelWidth;
+		p.unit = unit;
+		return p;
+	}
+
 	public int nChannels() {
 		return channels.length;
 	}

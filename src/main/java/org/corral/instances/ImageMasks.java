@@ -67,6 +67,15 @@ public final class ImageMasks {
 	 *               it, else they are split along the valleys of the distance transform
 	 */
 	public static Result make(float[] prob, float[] centre, int w, int h, double objectSize, double threshold, double prominence) {
+		return make(prob, centre, w, h, objectSize, threshold, prominence, 0, h);
+	}
+
+	/**
+	 * As above on a band of rows of a taller image ({@link BandedImageMasks}): the maps hold rows
+	 * {@code top .. top + h - 1} of an image {@code imageHeight} rows tall, and the objects' positions
+	 * and border flags are given in the image's frame.
+	 */
+	static Result make(float[] prob, float[] centre, int w, int h, double objectSize, double threshold, double prominence, int top, int imageHeight) {
 		boolean split = prominence > 0;
 		ByteProcessor bin = new ByteProcessor(w, h);
 		for (int i = 0; i < prob.length; i++) if (prob[i] >= threshold) bin.set(i, 255);
@@ -78,32 +87,44 @@ public final class ImageMasks {
 		double size = objectSize > 0 ? objectSize : 20;
 		if (split) {
 			for (int i = 0; i < mask.length; i++) bin.set(i, mask[i] ? 255 : 0);
-			FloatProcessor edm = new EDM().makeFloatEDM(bin, 0, false);
-			ByteProcessor seg;
+			FloatProcessor land;
+			ByteProcessor seeds;
 			if (centre != null) {
-				FloatProcessor cm = new FloatProcessor(w, h, centre.clone());
-				new GaussianBlur().blurGaussian(cm, 1.0, 1.0, 0.01);
-				seg = new MaximumFinder().findMaxima(cm, SEED_PROMINENCE, ImageProcessor.NO_THRESHOLD, MaximumFinder.SEGMENTED, false, false);
+				land = new FloatProcessor(w, h, centre.clone());
+				new GaussianBlur().blurGaussian(land, 1.0, 1.0, 0.01);
+				seeds = new MaximumFinder().findMaxima(land, SEED_PROMINENCE, ImageProcessor.NO_THRESHOLD, MaximumFinder.SINGLE_POINTS, false, false);
 			} else {
-				new GaussianBlur().blurGaussian(edm, 1.0, 1.0, 0.01); // tames pixel-level ridges
-				seg = new MaximumFinder().findMaxima(edm, Math.max(MIN_PROMINENCE, prominence * size), ImageProcessor.NO_THRESHOLD, MaximumFinder.SEGMENTED, false, true);
+				land = new EDM().makeFloatEDM(bin, 0, false);
+				new GaussianBlur().blurGaussian(land, 1.0, 1.0, 0.01); // tames pixel-level ridges
+				seeds = new MaximumFinder().findMaxima(land, Math.max(MIN_PROMINENCE, prominence * size), ImageProcessor.NO_THRESHOLD, MaximumFinder.SINGLE_POINTS, false, true);
 			}
-			boolean[] cells = new boolean[w * h];
-			for (int i = 0; i < cells.length; i++) cells[i] = mask[i] && seg.get(i) != 0;
-			lab = Components.label(cells, w, h, cnt);
-			reclaimLines(lab, mask, w, h);
+			lab = new int[w * h];
+			int k = 0;
+			for (int i = 0; i < lab.length; i++) if (mask[i] && seeds.get(i) != 0) lab[i] = ++k;
+			SeededWatershed.flood((float[]) land.getPixels(), mask, lab, w, h);
+			// a part of the mask that no seed reached is an object of its own (the rules below judge it)
+			boolean[] rest = new boolean[w * h];
+			for (int i = 0; i < rest.length; i++) rest[i] = mask[i] && lab[i] == 0;
+			int[] more = Components.label(rest, w, h, cnt);
+			for (int i = 0; i < lab.length; i++) if (more[i] > 0) lab[i] = k + more[i];
+			cnt[0] += k;
 		} else lab = Components.label(mask, w, h, cnt);
 		// drop specks: far below the area of a typical object
 		double minArea = Math.max(4, 0.08 * Math.PI / 4 * size * size);
 		long[] area = Components.sizes(lab, cnt[0]);
-		int[] remap = new int[cnt[0] + 1];
-		int n = 0;
 		float[] peak = centre == null ? null : peaks(lab, cnt[0], centre);
 		double[] sure = centre == null ? null : meanOver(lab, cnt[0], prob, area);
-		for (int l = 1; l <= cnt[0]; l++)
-			remap[l] = area[l] >= minArea && (peak == null || peak[l] >= CORE_HEIGHT && sure[l] >= MIN_MEAN_PROBABILITY) ? ++n : 0;
+		boolean[] kept = new boolean[cnt[0] + 1];
+		for (int l = 1; l <= cnt[0]; l++) kept[l] = area[l] >= minArea && (peak == null || peak[l] >= CORE_HEIGHT && sure[l] >= MIN_MEAN_PROBABILITY);
+		// numbered in the raster order of their first pixel, so that a band of rows numbers its objects as the whole image does
+		int[] remap = new int[cnt[0] + 1];
+		int n = 0;
+		for (int i = 0; i < lab.length; i++) {
+			int l = lab[i];
+			if (l > 0 && kept[l] && remap[l] == 0) remap[l] = ++n;
+		}
 		for (int i = 0; i < lab.length; i++) lab[i] = remap[lab[i]];
-		return new Result(lab, n, describe(lab, n, prob, w, h, size));
+		return new Result(lab, n, describe(lab, n, prob, w, h, size, top, imageHeight));
 	}
 
 	/**
@@ -140,23 +161,12 @@ public final class ImageMasks {
 		return mx;
 	}
 
-	/** Watershed lines are one pixel wide: give each line pixel of the mask to a neighbouring object. */
-	static void reclaimLines(int[] lab, boolean[] mask, int w, int h) {
-		for (int pass = 0; pass < 2; pass++)
-			for (int y = 0; y < h; y++)
-				for (int x = 0; x < w; x++) {
-					int i = y * w + x;
-					if (!mask[i] || lab[i] != 0) continue;
-					int best = 0;
-					if (x > 0 && lab[i - 1] > 0) best = lab[i - 1];
-					else if (y > 0 && lab[i - w] > 0) best = lab[i - w];
-					else if (x < w - 1 && lab[i + 1] > 0) best = lab[i + 1];
-					else if (y < h - 1 && lab[i + w] > 0) best = lab[i + w];
-					lab[i] = best;
-				}
+	static List<ObjectInfo> describe(int[] lab, int n, float[] prob, int w, int h, double size) {
+		return describe(lab, n, prob, w, h, size, 0, h);
 	}
 
-	static List<ObjectInfo> describe(int[] lab, int n, float[] prob, int w, int h, double size) {
+	/** Per-object figures; the labels hold rows {@code top ..} of an image {@code imageHeight} rows tall, positions are the image's. */
+	static List<ObjectInfo> describe(int[] lab, int n, float[] prob, int w, int h, double size, int top, int imageHeight) {
 		int[] x0 = new int[n + 1], y0 = new int[n + 1], x1 = new int[n + 1], y1 = new int[n + 1];
 		long[] area = new long[n + 1];
 		double[] psum = new double[n + 1];
@@ -180,12 +190,12 @@ public final class ImageMasks {
 			double mean = psum[l] / area[l];
 			double fill = area[l] / (double) (bw * bh);
 			List<String> flags = new ArrayList<>();
-			if (x0[l] == 0 || y0[l] == 0 || x1[l] == w - 1 || y1[l] == h - 1) flags.add("touches-border");
+			if (x0[l] == 0 || y0[l] + top == 0 || x1[l] == w - 1 || y1[l] + top == imageHeight - 1) flags.add("touches-border");
 			if (area[l] > 2.2 * typical || (fill < 0.55 && area[l] > 0.8 * typical)) flags.add("may-be-two-objects");
 			if (area[l] < 0.25 * typical) flags.add("tiny");
 			// confidence (ours): how sure the network is, lowered for shapes unlike a single object
 			double conf = Math.max(0, Math.min(1, (mean - 0.5) * 2)) * (flags.contains("may-be-two-objects") ? 0.5 : 1);
-			out.add(new ObjectInfo(l, x0[l], y0[l], bw, bh, area[l], mean, conf, flags));
+			out.add(new ObjectInfo(l, x0[l], y0[l] + top, bw, bh, area[l], mean, conf, flags));
 		}
 		return out;
 	}

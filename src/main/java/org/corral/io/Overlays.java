@@ -20,7 +20,7 @@ public final class Overlays {
 
 	public static BufferedImage outlines(PlanarImage raw, int[] labels) {
 		int w = raw.width, h = raw.height;
-		PlanarImage n = Normalise.percentiles(raw, 0.5, 99.5);
+		float[][] b = Normalise.bounds(raw, 0.5, 99.5); // no normalised copy: huge images stay in bounds
 		BufferedImage img = new BufferedImage(w, h, BufferedImage.TYPE_INT_RGB);
 		for (int y = 0; y < h; y++)
 			for (int x = 0; x < w; x++) {
@@ -30,9 +30,9 @@ public final class Overlays {
 					|| labels[i - 1] != l || labels[i + 1] != l || labels[i - w] != l || labels[i + w] != l);
 				int rgb;
 				if (edge) rgb = colour(l);
-				else if (n.nChannels() >= 3) rgb = (g(n, 0, i) << 16) | (g(n, 1, i) << 8) | g(n, 2, i);
+				else if (raw.nChannels() >= 3) rgb = (g(raw, b, 0, i) << 16) | (g(raw, b, 1, i) << 8) | g(raw, b, 2, i);
 				else {
-					int v = g(n, 0, i);
+					int v = g(raw, b, 0, i);
 					rgb = (v << 16) | (v << 8) | v;
 				}
 				img.setRGB(x, y, rgb);
@@ -40,7 +40,10 @@ public final class Overlays {
 		return img;
 	}
 
-	private static int g(PlanarImage n, int c, int i) {
-		return (int) Math.max(0, Math.min(255, n.channels[c][i] * 255));
+	/** Grey value 0..255 of a raw pixel, as {@link Normalise} would scale it (non-finite pixels black). */
+	private static int g(PlanarImage raw, float[][] b, int c, int i) {
+		float v = raw.channels[c][i], lo = b[0][c], hi = b[1][c];
+		float n = Float.isFinite(v) && hi > lo ? (v - lo) * (1f / (hi - lo)) : 0f;
+		return (int) Math.max(0, Math.min(255, n * 255));
 	}
 }

@@ -106,19 +106,32 @@ public final class ModelRunner implements AutoCloseable {
 	}
 
 	/** Every output map at the image's own size: [0] object probability, [1] the instance map when the model has one. */
-	public synchronized float[][] maps(PlanarImage raw, double scale, BooleanSupplier cancelled, int flips) {
+	public float[][] maps(PlanarImage raw, double scale, BooleanSupplier cancelled, int flips) {
+		return maps(raw, null, scale, cancelled, flips);
+	}
+
+	/**
+	 * As above, normalised with the given raw bounds ({@link Normalise#bounds}; null: the image's own
+	 * percentiles): a band of rows of a larger image is masked as the whole image would be.
+	 */
+	public synchronized float[][] maps(PlanarImage raw, float[][] bounds, double scale, BooleanSupplier cancelled, int flips) {
 		if (predictor == null) predictor = new TiledPredictor(net, manager);
 		predictor.optFlips(flips);
 		if (raw.nChannels() != header.inChannels)
 			throw new CorralException("The model was learned on " + header.inChannels + "-channel images; this image has " + raw.nChannels());
 		int no = Math.max(1, header.outputs);
 		if (constant(raw)) return new float[no][raw.width * raw.height]; // no contrast, no objects
-		PlanarImage norm = Normalise.percentiles(raw, header.normLow, header.normHigh);
+		PlanarImage norm = bounds != null ? Normalise.with(raw, bounds) : Normalise.percentiles(raw, header.normLow, header.normHigh);
 		if (scale == 1) return finite(predictor.predictMaps(norm, cancelled));
 		int sw = Math.max(1, (int) Math.round(raw.width * scale)), sh = Math.max(1, (int) Math.round(raw.height * scale));
 		float[][] p = finite(predictor.predictMaps(Resample.bilinear(norm, sw, sh), cancelled));
 		for (int o = 0; o < p.length; o++) p[o] = Resample.bilinear(p[o], sw, sh, raw.width, raw.height);
 		return p;
+	}
+
+	/** The raw values of {@code raw} that this model's normalisation maps to 0 and 1, per channel. */
+	public float[][] normalisationBounds(PlanarImage raw) {
+		return Normalise.bounds(raw, header.normLow, header.normHigh);
 	}
 
 	/** The instance map among {@link #maps}' outputs, or null when the model has none. */

@@ -5,6 +5,7 @@ import java.util.List;
 
 import org.corral.boxes.Box;
 import org.corral.image.PlanarImage;
+import org.corral.instances.BandedImageMasks;
 import org.corral.instances.ImageMasks;
 import org.corral.predict.ModelRunner;
 
@@ -12,7 +13,10 @@ import org.corral.predict.ModelRunner;
 public final class WholeImage {
 	private WholeImage() {}
 
-	/** The objects, the object probability, the scale used, and the class maps (none for one kind of object). */
+	/**
+	 * The objects, the object probability (null for an image masked in bands), the scale used, and
+	 * the class maps (none for one kind of object).
+	 */
 	public record Outcome(ImageMasks.Result result, float[] probability, double scale, float[][] classMaps) {}
 
 	/**
@@ -22,6 +26,12 @@ public final class WholeImage {
 	 *                   learned size when they are far from it)
 	 */
 	public static Outcome mask(ModelRunner model, PlanarImage im, double objectSize) {
+		return mask(model, im, objectSize, BandedImageMasks.BAND_ROWS);
+	}
+
+	/** As above, in bands of {@code bandRows} rows when the image is taller than that. */
+	static Outcome mask(ModelRunner model, PlanarImage im, double objectSize, int bandRows) {
+		if (im.height > bandRows) return inBands(model, im, objectSize, bandRows);
 		double byCalibration = objectSize > 0 ? 0 : model.scaleForCalibration(im);
 		double scale = objectSize > 0 ? model.scaleFor(objectSize) : byCalibration > 0 ? byCalibration : 1;
 		float[][] maps = model.maps(im, scale, null, ModelRunner.IMAGE_FLIPS);
@@ -39,6 +49,36 @@ public final class WholeImage {
 			}
 		}
 		return new Outcome(r, maps[0], scale, model.classMaps(maps));
+	}
+
+	/**
+	 * An image taller than a band is masked band by band ({@link BandedImageMasks}), so that the
+	 * network's maps and the instance stage never cover more than a band and its halo: each band is
+	 * normalised with the whole image's bounds, and the object size, when neither given nor known
+	 * from the calibrations, is estimated on the middle band.
+	 */
+	static Outcome inBands(ModelRunner model, PlanarImage im, double objectSize, int band) {
+		int w = im.width, h = im.height;
+		double scale;
+		if (objectSize > 0) scale = model.scaleFor(objectSize);
+		else {
+			double byCalibration = model.scaleForCalibration(im);
+			int mid = Math.max(0, h / 2 - band / 2);
+			scale = byCalibration > 0 ? byCalibration : mask(model, im.rows(mid, Math.min(h, mid + band)), 0).scale();
+		}
+		float[][] bounds = model.normalisationBounds(im);
+		double s = scale, size = model.header().objectSize / scale;
+		int nClasses = model.header().classCount();
+		float[][] classMaps = new float[nClasses][];
+		for (int k = 0; k < nClasses; k++) classMaps[k] = new float[w * h];
+		ImageMasks.Result r = BandedImageMasks.make((y0, y1) -> {
+			float[][] maps = model.maps(im.rows(y0, y1), bounds, s, null, ModelRunner.IMAGE_FLIPS);
+			float[][] cm = model.classMaps(maps);
+			for (int k = 0; k < nClasses; k++) System.arraycopy(cm[k], 0, classMaps[k], y0 * w, cm[k].length);
+			float[] inst = model.instanceMap(maps);
+			return inst == null ? new float[][] {maps[0]} : new float[][] {maps[0], inst};
+		}, w, h, size, band, BandedImageMasks.halo(size), null);
+		return new Outcome(r, null, scale, classMaps);
 	}
 
 	/**

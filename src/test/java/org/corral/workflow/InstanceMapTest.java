@@ -22,6 +22,31 @@ class InstanceMapTest {
 	@TempDir
 	Path dir;
 
+	/**
+	 * A tall mosaic of a demo image masked in bands of 96 rows (objects across every seam) and as one
+	 * window: the network's maps differ only by the tiling's rounding, so the objects agree.
+	 */
+	static void bandsMaskAsTheWholeImage(ModelRunner m, PlanarImage tile) {
+		int w = 2 * tile.width, h = 5 * tile.height;
+		float[][] c = new float[tile.nChannels()][w * h];
+		for (int k = 0; k < c.length; k++)
+			for (int y = 0; y < h; y++)
+				for (int x = 0; x < w; x++) c[k][y * w + x] = tile.channels[k][(y % tile.height) * tile.width + x % tile.width];
+		PlanarImage tall = new PlanarImage(w, h, c);
+		double size = m.header().objectSize;
+		WholeImage.Outcome whole = WholeImage.mask(m, tall, size, Integer.MAX_VALUE);
+		WholeImage.Outcome banded = WholeImage.mask(m, tall, size, 96);
+		int[] a = whole.result().labels(), b = banded.result().labels();
+		long same = 0;
+		for (int i = 0; i < a.length; i++) if (a[i] == b[i]) same++;
+		System.out.printf(java.util.Locale.ROOT, "bands against one window: %d / %d objects, %.5f of pixels with the same label%n", banded.result().count(),
+			whole.result().count(), same / (double) a.length);
+		assertTrue(whole.result().count() > 40, "the mosaic holds many objects: " + whole.result().count());
+		assertEquals(whole.result().count(), banded.result().count(), "objects in bands and in one window");
+		assertTrue(same >= 0.999 * a.length, "labels agree on " + same + " of " + a.length + " pixels");
+		assertEquals(null, banded.probability(), "no whole-image probability is kept in bands");
+	}
+
 	@Test
 	void learnedByDefaultRisesTowardsObjectCoresAndMasksWholeImages() {
 		var boxed = BoxedImages.find(ReferenceData.demo().resolve("images"), ReferenceData.demo().resolve("boxes.csv"));
@@ -54,6 +79,7 @@ class InstanceMapTest {
 			core /= nCore;
 			rim /= nRim;
 			assertTrue(core > rim + 0.2, "instance map at object cores " + core + " against rims " + rim);
+			bandsMaskAsTheWholeImage(m, ImageFiles.read(boxed.keySet().iterator().next()));
 		}
 		s.instanceMap = false;
 		s.steps = 3;
