@@ -20,15 +20,26 @@ public final class AtomicFiles {
 		void write(OutputStream out) throws IOException;
 	}
 
+	/** Writes the file of a library that wants a path: it writes a temporary file, which is then moved into place. */
+	public interface FileWriter {
+		void write(Path file) throws IOException;
+	}
+
 	public static void write(Path target, Writer writer) {
+		writeFile(target, tmp -> {
+			try (OutputStream out = Files.newOutputStream(tmp)) {
+				writer.write(out);
+			}
+		});
+	}
+
+	public static void writeFile(Path target, FileWriter writer) {
 		Path dir = target.toAbsolutePath().getParent();
 		Path tmp = null;
 		try {
 			Files.createDirectories(dir);
 			tmp = Files.createTempFile(dir, "." + target.getFileName() + ".", ".part");
-			try (OutputStream out = Files.newOutputStream(tmp)) {
-				writer.write(out);
-			}
+			writer.write(tmp);
 			try { // temp files are private; the result should read like any other file
 				Files.setPosixFilePermissions(tmp, java.nio.file.attribute.PosixFilePermissions.fromString("rw-r--r--"));
 			} catch (UnsupportedOperationException e) {

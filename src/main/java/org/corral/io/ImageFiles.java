@@ -120,10 +120,13 @@ public final class ImageFiles {
 		return imp;
 	}
 
+	/** Written straight to a temporary file by ImageJ (no copy of the image in memory), then moved into place. */
 	public static void saveTiff(ImagePlus imp, Path target) {
-		byte[] bytes = new FileSaver(imp).serialize();
-		if (bytes == null) throw new CorralException("Cannot encode " + imp.getTitle() + " as TIFF");
-		AtomicFiles.write(target, out -> out.write(bytes));
+		String title = imp.getTitle();
+		AtomicFiles.writeFile(target, tmp -> {
+			if (!new FileSaver(imp).saveAsTiff(tmp.toString())) throw new java.io.IOException("cannot encode " + title + " as TIFF");
+		});
+		imp.setTitle(title); // ImageJ names the image after the file it wrote
 	}
 
 	public static void savePng(java.awt.image.BufferedImage img, Path target) {
