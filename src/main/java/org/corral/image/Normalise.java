@@ -33,12 +33,52 @@ public final class Normalise {
 		return b;
 	}
 
+	/**
+	 * As {@link #bounds(PlanarImage, double, double)} for an image read in bands of rows: the same
+	 * strided sample, so the same bounds, without holding the image as float.
+	 */
+	public static float[][] bounds(RowReader im, double low, double high) {
+		if (im instanceof PlanarImage p) return bounds(p, low, high);
+		int w = im.width(), h = im.height(), nc = im.nChannels();
+		long len = (long) w * h;
+		int step = sampleStep(len);
+		float[][] sample = new float[nc][(int) ((len + step - 1) / step)];
+		int[] n = new int[nc];
+		for (int y0 = 0; y0 < h; y0 += SAMPLE_ROWS) {
+			int y1 = Math.min(h, y0 + SAMPLE_ROWS);
+			PlanarImage band = im.rows(y0, y1);
+			long first = (long) y0 * w, start = (first + step - 1) / step * step; // first sampled index in this band
+			for (int c = 0; c < nc; c++)
+				for (long i = start; i < (long) y1 * w; i += step) {
+					float v = band.channels[c][(int) (i - first)];
+					if (Float.isFinite(v)) sample[c][n[c]++] = v;
+				}
+		}
+		float[][] b = new float[2][nc];
+		for (int c = 0; c < nc; c++) {
+			float[] lh = fromSample(sample[c], n[c], low, high);
+			b[0][c] = lh[0];
+			b[1][c] = lh[1];
+		}
+		return b;
+	}
+
+	private static final int SAMPLE_ROWS = 256;
+
+	/** A strided sample of about a million pixels keeps this fast on huge images; percentiles barely move. */
+	private static int sampleStep(long length) {
+		return (int) Math.max(1, length / 1_000_000);
+	}
+
 	static float[] bounds(float[] v, double low, double high) {
-		// a strided sample keeps this fast on huge images; percentiles barely move
-		int step = Math.max(1, v.length / 1_000_000);
+		int step = sampleStep(v.length);
 		float[] s = new float[(v.length + step - 1) / step];
 		int n = 0;
 		for (int i = 0; i < v.length; i += step) if (Float.isFinite(v[i])) s[n++] = v[i];
+		return fromSample(s, n, low, high);
+	}
+
+	private static float[] fromSample(float[] s, int n, double low, double high) {
 		float lo = 0, hi = 1;
 		if (n > 0) {
 			Arrays.sort(s, 0, n);

@@ -1,7 +1,7 @@
 package org.corral.image;
 
 /** A 2D multi-channel float image, one array per channel in raster order. The core's image type. */
-public final class PlanarImage {
+public final class PlanarImage implements RowReader {
 	public final int width, height;
 	public final float[][] channels;
 	/** Pixel width in {@link #unit} when the image is calibrated, else 0 (metadata only). */
@@ -22,6 +22,7 @@ public final class PlanarImage {
 	}
 
 	/** A copy of rows {@code y0 .. y1 - 1}, with the calibration. */
+	@Override
 	public PlanarImage rows(int y0, int y1) {
 		if (y0 < 0 || y1 > height || y0 >= y1) throw new IllegalArgumentException("rows " + y0 + ".." + y1 + " of an image of " + height);
 		float[][] c = new float[channels.length][];
@@ -32,8 +33,24 @@ public final class PlanarImage {
 		return p;
 	}
 
+	@Override
+	public int width() {
+		return width;
+	}
+
+	@Override
+	public int height() {
+		return height;
+	}
+
+	@Override
 	public int nChannels() {
 		return channels.length;
+	}
+
+	@Override
+	public PlanarImage all() {
+		return this;
 	}
 
 	/** This image's pixel width in micrometres, or 0 when it is not calibrated in a known length unit. */

@@ -70,6 +70,59 @@ public final class ImageFiles {
 		return p;
 	}
 
+	/**
+	 * The channels of one stack position read a band of rows at a time, as {@link #planes} gives
+	 * them whole: the same float values and calibration, without a float copy of the whole plane.
+	 */
+	public static org.corral.image.RowReader rowReader(ImagePlus imp, int z, int t) {
+		int w = imp.getWidth(), h = imp.getHeight();
+		boolean rgb = imp.getType() == ImagePlus.COLOR_RGB;
+		int nc = rgb ? 3 : imp.getNChannels();
+		ImageStack st = imp.getStack();
+		ImageProcessor[] ip = new ImageProcessor[rgb ? 1 : nc];
+		for (int c = 0; c < ip.length; c++) ip[c] = st.getProcessor(imp.getStackIndex(c + 1, z, t));
+		Calibration cal = imp.getCalibration();
+		return new org.corral.image.RowReader() {
+			@Override
+			public int width() {
+				return w;
+			}
+
+			@Override
+			public int height() {
+				return h;
+			}
+
+			@Override
+			public int nChannels() {
+				return nc;
+			}
+
+			@Override
+			public PlanarImage rows(int y0, int y1) {
+				if (y0 < 0 || y1 > h || y0 >= y1) throw new IllegalArgumentException("rows " + y0 + ".." + y1 + " of an image of " + h);
+				int n = (y1 - y0) * w;
+				float[][] ch = new float[nc][n];
+				if (rgb) {
+					int[] px = (int[]) ip[0].getPixels();
+					for (int i = 0, q = y0 * w; i < n; i++, q++) {
+						ch[0][i] = (px[q] >> 16) & 0xff;
+						ch[1][i] = (px[q] >> 8) & 0xff;
+						ch[2][i] = px[q] & 0xff;
+					}
+				} else
+					for (int c = 0; c < nc; c++)
+						for (int i = 0, q = y0 * w; i < n; i++, q++) ch[c][i] = ip[c].getf(q);
+				PlanarImage p = new PlanarImage(w, y1 - y0, ch);
+				if (cal != null && cal.scaled()) {
+					p.pixelWidth = cal.pixelWidth;
+					p.unit = cal.getUnit();
+				}
+				return p;
+			}
+		};
+	}
+
 	private static PlanarImage rawPlanes(ImagePlus imp, int z, int t) {
 		int w = imp.getWidth(), h = imp.getHeight();
 		ImageStack st = imp.getStack();

@@ -18,27 +18,36 @@ public final class Overlays {
 		return java.awt.Color.HSBtoRGB(hue, 0.85f, 1f) & 0xffffff;
 	}
 
-	public static BufferedImage outlines(PlanarImage raw, int[] labels) {
-		int w = raw.width, h = raw.height;
+	/** Read in bands of rows, so that a huge image is never held as float. */
+	public static BufferedImage outlines(org.corral.image.RowReader raw, int[] labels) {
+		int w = raw.width(), h = raw.height();
 		float[][] b = Normalise.bounds(raw, 0.5, 99.5); // no normalised copy: huge images stay in bounds
 		BufferedImage img = new BufferedImage(w, h, BufferedImage.TYPE_INT_RGB);
-		for (int y = 0; y < h; y++)
-			for (int x = 0; x < w; x++) {
-				int i = y * w + x;
-				int l = labels[i];
-				boolean edge = l > 0 && (x == 0 || y == 0 || x == w - 1 || y == h - 1
-					|| labels[i - 1] != l || labels[i + 1] != l || labels[i - w] != l || labels[i + w] != l);
-				int rgb;
-				if (edge) rgb = colour(l);
-				else if (raw.nChannels() >= 3) rgb = (g(raw, b, 0, i) << 16) | (g(raw, b, 1, i) << 8) | g(raw, b, 2, i);
-				else {
-					int v = g(raw, b, 0, i);
-					rgb = (v << 16) | (v << 8) | v;
+		int[] line = new int[w];
+		for (int y0 = 0; y0 < h; y0 += BAND_ROWS) {
+			PlanarImage band = raw.rows(y0, Math.min(h, y0 + BAND_ROWS));
+			for (int y = y0; y < y0 + band.height; y++) {
+				for (int x = 0; x < w; x++) {
+					int i = y * w + x, j = (y - y0) * w + x;
+					int l = labels[i];
+					boolean edge = l > 0 && (x == 0 || y == 0 || x == w - 1 || y == h - 1
+						|| labels[i - 1] != l || labels[i + 1] != l || labels[i - w] != l || labels[i + w] != l);
+					int rgb;
+					if (edge) rgb = colour(l);
+					else if (band.nChannels() >= 3) rgb = (g(band, b, 0, j) << 16) | (g(band, b, 1, j) << 8) | g(band, b, 2, j);
+					else {
+						int v = g(band, b, 0, j);
+						rgb = (v << 16) | (v << 8) | v;
+					}
+					line[x] = rgb;
 				}
-				img.setRGB(x, y, rgb);
+				img.setRGB(0, y, w, 1, line, 0, w);
 			}
+		}
 		return img;
 	}
+
+	private static final int BAND_ROWS = 256;
 
 	/** Grey value 0..255 of a raw pixel, as {@link Normalise} would scale it (non-finite pixels black). */
 	private static int g(PlanarImage raw, float[][] b, int c, int i) {

@@ -130,7 +130,7 @@ public final class ModelRunner implements AutoCloseable {
 	}
 
 	/** The raw values of {@code raw} that this model's normalisation maps to 0 and 1, per channel. */
-	public float[][] normalisationBounds(PlanarImage raw) {
+	public float[][] normalisationBounds(org.corral.image.RowReader raw) {
 		return Normalise.bounds(raw, header.normLow, header.normHigh);
 	}
 

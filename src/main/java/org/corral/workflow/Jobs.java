@@ -431,7 +431,7 @@ public final class Jobs {
 	}
 
 	/** Whole-image result of one image: labels per stack position, outlines, proposed boxes, one row per object. */
-	public record WholeImageOutcome(int[][] labels, int count, List<Roi> outlines, List<Roi> proposals, List<ObjectRow> objects, PlanarImage shown, boolean classes) {
+	public record WholeImageOutcome(int[][] labels, int count, List<Roi> outlines, List<Roi> proposals, List<ObjectRow> objects, org.corral.image.RowReader shown, boolean classes) {
 		/** The per-object table as written to {@code NAME.objects.csv} ({@link ResultTables#objects}). */
 		public String table() {
 			return ResultTables.objects(classes).csv(objects);
@@ -445,11 +445,11 @@ public final class Jobs {
 		int[][] labels = new int[n][];
 		List<Roi> rois = new ArrayList<>(), rects = new ArrayList<>();
 		List<ObjectRow> rows = new ArrayList<>();
-		PlanarImage first = null;
+		org.corral.image.RowReader first = null;
 		int total = 0;
 		for (int p = 1; p <= n; p++) {
 			int[] zt = ImageFiles.zt(imp, p);
-			PlanarImage raw = ImageFiles.planes(imp, zt[0], zt[1]);
+			org.corral.image.RowReader raw = ImageFiles.rowReader(imp, zt[0], zt[1]);
 			if (first == null) first = raw;
 			WholeImage.Outcome o = WholeImage.mask(model, raw, objectSize);
 			int[] lab = o.result().labels();

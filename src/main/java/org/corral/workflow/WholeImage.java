@@ -5,6 +5,7 @@ import java.util.List;
 
 import org.corral.boxes.Box;
 import org.corral.image.PlanarImage;
+import org.corral.image.RowReader;
 import org.corral.instances.BandedImageMasks;
 import org.corral.instances.ImageMasks;
 import org.corral.predict.ModelRunner;
@@ -27,6 +28,11 @@ public final class WholeImage {
 	 */
 	public static Outcome mask(ModelRunner model, PlanarImage im, double objectSize) {
 		return mask(model, im, objectSize, BandedImageMasks.BAND_ROWS);
+	}
+
+	/** As above for an image read in bands of rows: one taller than a band is never held whole as float. */
+	public static Outcome mask(ModelRunner model, RowReader im, double objectSize) {
+		return im.height() > BandedImageMasks.BAND_ROWS ? inBands(model, im, objectSize, BandedImageMasks.BAND_ROWS) : mask(model, im.all(), objectSize);
 	}
 
 	/** As above, in bands of {@code bandRows} rows when the image is taller than that. */
@@ -57,12 +63,12 @@ public final class WholeImage {
 	 * normalised with the whole image's bounds, and the object size, when neither given nor known
 	 * from the calibrations, is estimated on the middle band.
 	 */
-	static Outcome inBands(ModelRunner model, PlanarImage im, double objectSize, int band) {
-		int w = im.width, h = im.height;
+	static Outcome inBands(ModelRunner model, RowReader im, double objectSize, int band) {
+		int w = im.width(), h = im.height();
 		double scale;
 		if (objectSize > 0) scale = model.scaleFor(objectSize);
 		else {
-			double byCalibration = model.scaleForCalibration(im);
+			double byCalibration = model.scaleForCalibration(im.rows(0, 1)); // a band carries the calibration
 			int mid = Math.max(0, h / 2 - band / 2);
 			scale = byCalibration > 0 ? byCalibration : mask(model, im.rows(mid, Math.min(h, mid + band)), 0).scale();
 		}

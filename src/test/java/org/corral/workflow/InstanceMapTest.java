@@ -45,7 +45,21 @@ class InstanceMapTest {
 		assertEquals(whole.result().count(), banded.result().count(), "objects in bands and in one window");
 		assertTrue(same >= 0.999 * a.length, "labels agree on " + same + " of " + a.length + " pixels");
 		assertEquals(null, banded.probability(), "no whole-image probability is kept in bands");
+
+		// an image taller than a band, as mask-image meets it: read from ImageJ a band at a time
+		int hTall = org.corral.instances.BandedImageMasks.BAND_ROWS + 76;
+		float[] px = new float[tile.width * hTall];
+		for (int y = 0; y < hTall; y++)
+			for (int x = 0; x < tile.width; x++) px[y * tile.width + x] = tile.channels[0][(y % tile.height) * tile.width + x];
+		ij.ImagePlus imp = new ij.ImagePlus("tall", new ij.process.FloatProcessor(tile.width, hTall, px));
+		Jobs.WholeImageOutcome job = Jobs.maskWhole(imp, m, size);
+		int[] one = WholeImage.mask(m, ImageFiles.planes(imp, 1, 1), size, Integer.MAX_VALUE).result().labels();
+		long agree = 0;
+		for (int i = 0; i < one.length; i++) if (one[i] == job.labels()[0][i]) agree++;
+		assertTrue(job.count() > 40, "objects in the tall image: " + job.count());
+		assertTrue(agree >= 0.999 * one.length, "mask-image in bands agrees with one window on " + agree + " of " + one.length + " pixels");
 	}
+
 
 	@Test
 	void learnedByDefaultRisesTowardsObjectCoresAndMasksWholeImages() {
