@@ -100,8 +100,8 @@ public final class Main {
 				System.out.println(s.background == Supervision.BackgroundMode.FULL ? "background: every pixel outside the boxes (--all-boxed)"
 					: "background: a ring around each box, as some objects may be unboxed (give --all-boxed when every object is boxed)");
 				Learner.Result r = Jobs.learn(boxed, boxes, s, model, printer(stop), note -> System.out.println("note: " + note));
-				System.out.printf(Locale.ROOT, "model written to %s (%s steps, %.3f s/step, constraints met %.3f)%n", model, r.header().counts.get("steps"),
-					r.header().counts.get("secondsPerStep"), r.header().scores.getOrDefault("constraintsMet", Double.NaN));
+				System.out.printf(Locale.ROOT, "model written to %s (%s steps, %.3f s/step, constraints met %.3f)%n", model, r.header().counts.steps,
+					r.header().counts.secondsPerStep, r.header().scores.constraintsMet);
 				r.close();
 				return 0;
 			}

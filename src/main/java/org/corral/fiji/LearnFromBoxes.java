@@ -119,8 +119,8 @@ public class LearnFromBoxes implements Command {
 		ImageJProgress p = progress != null ? progress : new ImageJProgress(plot);
 		try (Learner.Result r = new Learner(s).learn(images, p)) {
 			org.corral.model.ModelFile.write(model.toPath(), r.header(), r.net());
-			summary = String.format(java.util.Locale.ROOT, "learned from %s boxes on %s image(s) in %s steps; constraints met %.3f; model %s", r.header().counts.get("boxes"),
-				r.header().counts.get("images"), r.header().counts.get("steps"), r.header().scores.getOrDefault("constraintsMet", Double.NaN), model);
+			summary = String.format(java.util.Locale.ROOT, "learned from %s boxes on %s image(s) in %s steps; constraints met %.3f; model %s", r.header().counts.boxes,
+				r.header().counts.images, r.header().counts.steps, r.header().scores.constraintsMet, model);
 			ij.IJ.showStatus("Corral: " + summary);
 		}
 	}

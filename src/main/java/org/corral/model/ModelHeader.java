@@ -51,6 +51,25 @@ public final class ModelHeader {
 	public String pixelUnit;
 	public long seed;
 	public Map<String, Object> training = new LinkedHashMap<>();
-	public Map<String, Object> counts = new LinkedHashMap<>();
-	public Map<String, Object> scores = new LinkedHashMap<>();
+	public Counts counts = new Counts();
+	public Scores scores = new Scores();
+
+	/** What the model was learned from, and for how long. */
+	public static final class Counts {
+		/** The creation time of the model this one continued from (adaptation), else absent. */
+		public String continuedFrom;
+		public int images, boxes;
+		/** Boxes given with their exact outline (corrections). */
+		public int outlines;
+		public int steps;
+		public boolean shortenedByTimeBudget;
+		public double secondsPerStep;
+	}
+
+	/** Learning's last report: the loss, the share of box constraints met, and each loss term by name. */
+	public static final class Scores {
+		public double loss = Double.NaN;
+		public double constraintsMet = Double.NaN;
+		public Map<String, Double> parts = new LinkedHashMap<>();
+	}
 }

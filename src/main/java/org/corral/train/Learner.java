@@ -253,16 +253,17 @@ public final class Learner {
 		}
 		h.seed = s.seed;
 		h.training = s.asMap();
-		if (from != null) h.counts.put("continuedFrom", from.header().created);
-		h.counts.put("images", prep.images().size());
-		h.counts.put("boxes", prep.boxes());
-		h.counts.put("outlines", prep.outlines());
-		h.counts.put("steps", run.total);
-		h.counts.put("shortenedByTimeBudget", run.shortened);
-		h.counts.put("secondsPerStep", (System.nanoTime() - run.start) / 1e9 / run.total);
+		if (from != null) h.counts.continuedFrom = from.header().created;
+		h.counts.images = prep.images().size();
+		h.counts.boxes = prep.boxes();
+		h.counts.outlines = prep.outlines();
+		h.counts.steps = run.total;
+		h.counts.shortenedByTimeBudget = run.shortened;
+		h.counts.secondsPerStep = (System.nanoTime() - run.start) / 1e9 / run.total;
 		if (run.last != null) {
-			h.scores.put(LOSS, run.last.loss());
-			for (var e : run.last.parts().entrySet()) h.scores.put(e.getKey().equals(ConstraintTerm.MET) ? "constraintsMet" : e.getKey(), e.getValue());
+			h.scores.loss = run.last.loss();
+			h.scores.constraintsMet = run.last.part(ConstraintTerm.MET);
+			for (var e : run.last.parts().entrySet()) if (!e.getKey().equals(ConstraintTerm.MET)) h.scores.parts.put(e.getKey(), e.getValue());
 		}
 		return h;
 	}

@@ -74,7 +74,7 @@ public final class Benchmark {
 					rep.secondsPerStep()));
 		});
 		double learnSeconds = (System.nanoTime() - t0) / 1e9;
-		double sps = ((Number) r.header().counts.get("secondsPerStep")).doubleValue();
+		double sps = r.header().counts.secondsPerStep;
 		Scores.Tally model = new Scores.Tally(), box = new Scores.Tally(), otsu = new Scores.Tally();
 		Scores.Tally whole = new Scores.Tally(), plainCC = new Scores.Tally(), classical = new Scores.Tally();
 		double wholeSeconds = 0;

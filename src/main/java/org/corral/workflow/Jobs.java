@@ -266,13 +266,12 @@ public final class Jobs {
 
 		void adapted(org.corral.model.ModelHeader h, LearnSettings s, double seconds) {
 			adaptedCreated = h.created;
-			adaptSteps = ((Number) h.counts.get("steps")).intValue();
-			adaptBoxes = ((Number) h.counts.get("boxes")).intValue();
-			adaptImages = ((Number) h.counts.get("images")).intValue();
+			adaptSteps = h.counts.steps;
+			adaptBoxes = h.counts.boxes;
+			adaptImages = h.counts.images;
 			seed = s.seed;
 			adaptSeconds = seconds;
-			Object met = h.scores.get("constraintsMet");
-			constraintsMet = met instanceof Number n ? n.doubleValue() : null;
+			constraintsMet = Double.isNaN(h.scores.constraintsMet) ? null : h.scores.constraintsMet;
 		}
 
 		String json() {

@@ -137,8 +137,8 @@ class MacrosTest {
 			Path again = dir.resolve("rm-model-corrected.zip");
 			new Interpreter().run("run(\"Corral Learn from Boxes\", \"source=[current image] model=[" + again + "] steps=20\");", "");
 			try (org.corral.predict.ModelRunner m = org.corral.predict.ModelRunner.open(again)) {
-				assertEquals(1, ((Number) m.header().counts.get("outlines")).intValue(), "the corrected outline is learned as an exact object");
-				assertEquals(boxes.size(), ((Number) m.header().counts.get("boxes")).intValue(), "it replaces its box; the other boxes stay");
+				assertEquals(1, m.header().counts.outlines, "the corrected outline is learned as an exact object");
+				assertEquals(boxes.size(), m.header().counts.boxes, "it replaces its box; the other boxes stay");
 			}
 		} finally {
 			Interpreter.batchMode = false;

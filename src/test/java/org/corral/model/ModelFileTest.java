@@ -38,6 +38,11 @@ class ModelFileTest {
 		h.normHigh = 99.8;
 		h.objectSize = 12.5;
 		h.seed = 7;
+		h.counts.boxes = 31;
+		h.counts.steps = 400;
+		h.counts.continuedFrom = "2026-01-02T03:04:05Z";
+		h.scores.constraintsMet = 0.997;
+		h.scores.parts.put("background", 0.02);
 		return h;
 	}
 
@@ -62,6 +67,12 @@ class ModelFileTest {
 			ModelFile.Loaded l = ModelFile.read(f, m);
 			assertEquals(12.5, l.header().objectSize);
 			assertEquals(7, l.header().seed);
+			assertEquals(31, l.header().counts.boxes);
+			assertEquals(400, l.header().counts.steps);
+			assertEquals("2026-01-02T03:04:05Z", l.header().counts.continuedFrom);
+			assertEquals(0.997, l.header().scores.constraintsMet);
+			assertEquals(0.02, l.header().scores.parts.get("background"));
+			assertTrue(Double.isNaN(l.header().scores.loss), "a score never reported stays unknown");
 			assertArrayEquals(before, run(l.net(), m), 1e-6f);
 		}
 	}

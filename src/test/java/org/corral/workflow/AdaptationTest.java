@@ -51,7 +51,7 @@ class AdaptationTest {
 		assertArrayEquals(runs[0], runs[1], "same boxes, model, seed and steps: the same label image");
 		assertFalse(java.util.Arrays.equals(runs[0], runs[2]), "adapting changed the masks");
 		try (var m = org.corral.predict.ModelRunner.open(dir.resolve("adapted.zip"))) {
-			assertEquals(ModelFile.readHeader(model).created, m.header().counts.get("continuedFrom"), "the adapted model names its start");
+			assertEquals(ModelFile.readHeader(model).created, m.header().counts.continuedFrom, "the adapted model names its start");
 			assertEquals(ModelFile.readHeader(model).objectSize, m.header().objectSize, 1e-9);
 		}
 	}
