@@ -87,262 +87,303 @@ public final class Main {
 		}
 		String job = argv[0];
 		boolean help = List.of(argv).contains("--help");
-		switch (job) {
-			case "learn" -> {
-				if (help) return print(LEARN_HELP);
-				Args a = new Args(job, argv, 1, Set.of("partial", "all-boxed"));
-				threads(a);
-				Path images = a.path("images", true), model = a.path("model", true), boxes = a.path("boxes", false);
-				LearnSettings s = settings(a);
-				a.checkAllUsed();
-				Map<Path, List<Box>> boxed = BoxedImages.find(images, boxes);
-				AtomicBoolean stop = cancelOnInterrupt();
-				System.out.println(s.background == Supervision.BackgroundMode.FULL ? "background: every pixel outside the boxes (--all-boxed)"
-					: "background: a ring around each box, as some objects may be unboxed (give --all-boxed when every object is boxed)");
-				Learner.Result r = Jobs.learn(boxed, boxes, s, model, printer(stop), note -> System.out.println("note: " + note));
-				System.out.printf(Locale.ROOT, "model written to %s (%s steps, %.3f s/step, constraints met %.3f)%n", model, r.header().counts.steps,
-					r.header().counts.secondsPerStep, r.header().scores.constraintsMet);
-				r.close();
-				return 0;
-			}
-			case "mask-boxes" -> {
-				if (help) return print(String.format(Locale.ROOT, """
-					corral mask-boxes --images DIR --out DIR [--model FILE] [--boxes FILE.csv] [options]
-					  writes OUT/NAME.labels.tif (label k = mask of the k-th box of NAME), OUT/NAME.outlines.zip,
-					  OUT/NAME.objects.csv (one row per box, with fit figures and flags), OUT/NAME.overlay.png,
-					  and OUT/corral-run.json (the model used). OUT must not be the image folder. Resumable:
-					  images already done are skipped; a failing image is listed in OUT/corral-failures.csv
-					  and the others go on (exit code 3).
-					  By default the model first continues learning on the boxes being masked (one step per
-					  box, %d to %d steps; without --model it learns from scratch on them), then each mask is
-					  fitted to its box (it crosses every row and column of the box, and fills at most %.0f %%%%).
-					  --model FILE         model to start from (optional)
-					  --no-adapt           mask with the model as it is
-					  --adapt-steps N      steps of that learning (default: the rule above)
-					  --save-adapted FILE  also save the adapted model
-					  --margin PX          boxes may be up to PX too large on each side
-					  --part K/N           only share K of N of the images (sorted by name, every N-th from
-					                       the K-th); adaptation then learns from that share's boxes only
-					  --seed S, --band W, --all-boxed, --threads N   as for learn
-					""", Adaptation.MIN_STEPS, Adaptation.MAX_STEPS, 100 * SupervisionSettings.DEFAULT_FILL_MAX).replace("%%", "%"));
-				Args a = new Args(job, argv, 1, Set.of("no-adapt", "partial", "all-boxed"));
-				threads(a);
-				Path images = a.path("images", true), model = a.path("model", false), out = a.path("out", true), boxes = a.path("boxes", false);
-				boolean adapt = !a.has("no-adapt");
-				int steps = a.integer("adapt-steps", 0, 1, 1_000_000);
-				Path save = a.path("save-adapted", false);
-				Share share = Share.parse(a.str("part", null));
-				LearnSettings s = settings(a);
-				a.checkAllUsed();
-				if (!adapt && model == null) throw new CorralException("mask-boxes: --no-adapt needs --model FILE");
-				Map<Path, List<Box>> boxed = BoxedImages.find(images, boxes);
-				if (boxed.isEmpty()) throw new CorralException("No boxes found for the images in " + images);
-				AtomicBoolean stop = cancelOnInterrupt();
-				return report(Jobs.maskBoxes(boxed, boxes, model, new Jobs.AdaptPlan(adapt, steps, save, s), share, out, stop::get, printer(stop), System.out::println));
-			}
-			case "mask-image" -> {
-				if (help) return print("""
-					corral mask-image --images DIR --model FILE --out DIR [--object-size PX] [--propose] [--threads N]
-					  masks every object of every image, no boxes needed: OUT/NAME.labels.tif (one id per object),
-					  OUT/NAME.outlines.zip, OUT/NAME.objects.csv (area, mean probability, confidence, flags),
-					  OUT/NAME.overlay.png. OUT must not be the image folder. Resumable: images already done
-					  are skipped; a failing image is listed in OUT/corral-failures.csv, the others go on (exit 3).
-					  --object-size PX  typical object side in these images (default: measured in a first pass)
-					  --propose         also write the objects as boxes: OUT/corral-proposed-boxes.csv (learner's
-					                    form) and OUT/NAME.proposed-boxes.zip, to correct and learn again
-					  --part K/N        only share K of N of the images (sorted by name, every N-th from the K-th);
-					                    folder-level files get the share's name (corral-failures.part-K-of-N.csv),
-					                    and corral merge joins them; cluster-script writes the whole SLURM job
-					  OUT/corral-objects.csv: every image's objects under one header (also written by merge)
-					""");
-				Args a = new Args(job, argv, 1, Set.of("propose"));
-				threads(a);
-				Path images = a.path("images", true), model = a.path("model", true), out = a.path("out", true);
-				double size = a.number("object-size", 0, 0, 1e6);
-				boolean propose = a.has("propose");
-				Share share = Share.parse(a.str("part", null));
-				a.checkAllUsed();
-				List<Path> files = BoxedImages.images(images);
-				if (files.isEmpty()) throw new CorralException("No images in " + images);
-				AtomicBoolean stop = cancelOnInterrupt();
-				FolderRun.Report rep;
-				try (ModelRunner m = ModelRunner.open(model)) {
-					rep = Jobs.maskImages(files, share, m, out, size, propose, stop::get, System.out::println);
-				}
-				return report(rep);
-			}
-			case "merge" -> {
-				if (help) return print("""
-					corral merge --out DIR [--images DIR [--job mask-image|mask-boxes] [--boxes FILE.csv]]
-					  after a folder run in shares (--part K/N): joins the shares' failure lists and proposed
-					  boxes into OUT/corral-failures.csv and OUT/corral-proposed-boxes.csv, and writes
-					  OUT/corral-objects.csv (every image's objects, image name first). With --images, images
-					  neither done nor failed are listed as not run yet (for mask-boxes, images with boxes).
-					  Exit code 3 when an image failed or was not run.
-					""");
-				Args a = new Args(job, argv, 1, Set.of());
-				Path out = a.path("out", true), images = a.path("images", false), boxes = a.path("boxes", false);
-				String kind = a.str("job", "mask-image");
-				a.checkAllUsed();
-				if (!org.corral.cluster.SlurmScript.JOBS.contains(kind)) throw new CorralException("merge: --job must be mask-image or mask-boxes, got '" + kind + "'");
-				List<Path> expected = images == null ? null
-					: kind.equals("mask-boxes") ? List.copyOf(BoxedImages.find(images, boxes).keySet()) : BoxedImages.images(images);
-				FolderMerge.Report r = FolderMerge.merge(out, expected);
-				System.out.println(r.summary());
-				return r.complete() ? 0 : 3;
-			}
-			case "cluster-script" -> {
-				if (help) return print("""
-					corral cluster-script --parts N [--time T] [--mem M] [--partition P] [--threads C] [--launcher CMD] -- JOB
-					  writes a SLURM job array for a folder run, JOB being a mask-image or mask-boxes command line
-					  (for example: -- mask-image --images DIR --model FILE --out DIR): task i runs share i+1 of N
-					  (--part), then a merge job (corral merge) joins the shares' tables. The scripts go to
-					  OUT/corral-slurm/ (array.sbatch, merge.sbatch, logs/); the sbatch command is printed, not run.
-					  --parts N      shares = array tasks (required)
-					  --time T       time limit per task (default 01:00:00)
-					  --mem M        memory per task (default 4G; Java gets 60 %, the rest is for the engine)
-					  --partition P  partition (default: the cluster's default)
-					  --threads C    cores per task (default 2)
-					  --launcher CMD the command that runs Corral on the nodes (default: this ./corral)
-					  Same model, same images, same --threads: the merged outputs are byte for byte those of one
-					  run of the whole folder. mask-boxes adapts per share unless --no-adapt is given.
-					""");
-				int dash = List.of(argv).indexOf("--");
-				if (dash < 0) throw new CorralException("cluster-script: give the folder job after --, for example: -- mask-image --images DIR --model FILE --out DIR");
-				String[] own = java.util.Arrays.copyOfRange(argv, 0, dash);
-				List<String> jobArgs = List.of(argv).subList(dash + 1, argv.length);
-				Args a = new Args(job, own, 1, Set.of());
-				int parts = a.integer("parts", 0, 1, 100_000);
-				if (parts == 0) throw new CorralException("cluster-script: --parts N is required");
-				String launcher = a.str("launcher", null);
-				var settings = new org.corral.cluster.SlurmScript.Settings(jobArgs, parts, a.str("time", "01:00:00"), a.str("mem", "4G"), a.str("partition", null),
-					a.integer("threads", 2, 1, 4096), launcher == null ? org.corral.cluster.SlurmScript.defaultLauncher() : List.of(launcher), Path.of(""));
-				a.checkAllUsed();
-				var sc = org.corral.cluster.SlurmScript.write(settings);
-				System.out.println("wrote " + sc.array() + " (" + parts + " array tasks) and " + sc.merge() + "; logs go to " + sc.logs());
-				if (jobArgs.get(0).equals("mask-boxes") && !jobArgs.contains("--no-adapt"))
-					System.out.println("note: each share adapts the model to its own boxes; for one model across shares, adapt once (mask-boxes --save-adapted, or learn) and give --no-adapt");
-				System.out.println("submit with:\n  " + sc.submit());
-				return 0;
-			}
-			case "score" -> {
-				if (help) return print("""
-					corral score --labels DIR --reference DIR [--out FILE.csv]
-					  per image and overall (ALL): per-object Dice and IoU, pixel Dice, precision / recall / F1
-					  at IoU 0.5, mean AP over IoU 0.5:0.05:0.95 (2018 Data Science Bowl form)
-					""");
-				Args a = new Args(job, argv, 1, Set.of());
-				Path labels = a.path("labels", true), ref = a.path("reference", true), out = a.path("out", false);
-				a.checkAllUsed();
-				System.out.print(Jobs.score(labels, ref, out));
-				return 0;
-			}
-			case "demo" -> {
-				if (help) return print("corral demo [--out DIR] [--steps N] [learn options]\n  learns from the boxes of test-images/ (default " + LearnSettings.QUICK_STEPS + " steps), masks them, scores them against\n  test-images/reference (default out: corral-demo-output)\n");
-				Args a = new Args(job, argv, 1, Set.of("partial", "all-boxed"));
-				threads(a);
-				Path out = Path.of(a.str("out", "corral-demo-output"));
-				LearnSettings s = settings(a, LearnSettings.QUICK_STEPS);
-				a.checkAllUsed();
-				Demo.run(Path.of("test-images"), out, s, printer(cancelOnInterrupt()), System.out::println);
-				return 0;
-			}
-			case "benchmark" -> {
-				if (help) return print("corral benchmark --data DIR [--data2 DIR] [--grow 0,2,4,8] [learn options]\n  each DIR is a reference set (images/, labels/, boxes.csv): learn on the first 5 images, mask the other 5;\n  prints the figures of Corral, the box itself and Otsu in the box; with boxes (tight) and without (whole image).\n  --grow LIST  instead: per-object Dice with every box enlarged by each amount, without and with --margin\n"
-					+ "corral benchmark --learn A --mask B[,C...] [--cache DIR]\n  the cross-collection protocol (README)\n"
-					+ "corral benchmark --corrections SET [--rounds N] [--fraction F]\n  outlines as corrections: per round, the worst-masked F (default 0.1) of the learning images' objects\n  get their reference outlines and learning starts again; per-object Dice of corrected, neighbours, held-out\n"
-					+ "corral benchmark --speed [--images DIR [--boxes FILE.csv]] [--model FILE] [--steps N]\n  where the time goes: learning s/step (" + SPEED_STEPS
-					+ " steps unless --model), then each stage of masking the folder (default test-images/) in MP/s,\n  the network's GFLOP/s against a matrix product measured in the same run, end-to-end rates and peak memory\n");
-				Args a = new Args(job, argv, 1, Set.of("partial", "all-boxed", "speed"));
-				threads(a);
-				Path corrections = a.path("corrections", false);
-				if (corrections != null) { // outlines as corrections, round by round
-					int rounds = a.integer("rounds", 2, 1, 100);
-					double fraction = a.number("fraction", 0.1, 0.001, 1);
-					LearnSettings s = settings(a);
-					a.checkAllUsed();
-					System.out.printf(Locale.ROOT, "%s: learn on the first 5 images; each round outlines the worst-masked %.0f %% of their objects and learns again%n",
-						corrections, 100 * fraction);
-					org.corral.workflow.CorrectionRounds.run(corrections, 5, rounds, fraction, s, System.out::println);
-					return 0;
-				}
-				if (a.has("speed")) { // where the time goes, stage by stage
-					Path images = a.path("images", false);
-					Path boxes = a.path("boxes", false);
-					Path model = a.path("model", false);
-					LearnSettings s = settings(a, SPEED_STEPS);
-					a.checkAllUsed();
-					if (images == null) {
-						images = Path.of("test-images", "images");
-						if (boxes == null) boxes = Path.of("test-images", "boxes.csv");
-					}
-					System.out.print(org.corral.workflow.SpeedBenchmark.run(images, boxes, model, s, System.out::println));
-					return 0;
-				}
-				if (a.has("learn")) { // the cross-collection protocol: learn on A, mask B
-					Path learnSet = a.path("learn", true);
-					List<Path> maskSets = new java.util.ArrayList<>();
-					for (String m : a.str("mask", "").split(",")) if (!m.isBlank()) maskSets.add(Path.of(m.trim()));
-					if (maskSets.isEmpty()) throw new CorralException("benchmark: --learn needs --mask SET[,SET...]");
-					LearnSettings s = settings(a);
-					int nLearn = a.integer("learn-images", 5, 1, 1000);
-					Path cache = a.path("cache", false);
-					a.checkAllUsed();
-					StringBuilder all = new StringBuilder();
-					for (Path m : maskSets) {
-						System.out.println("== learn " + learnSet.getFileName() + ", mask " + m.getFileName());
-						String t = org.corral.workflow.CrossBenchmark.table(learnSet.getFileName().toString(), m.getFileName().toString(),
-							org.corral.workflow.CrossBenchmark.run(learnSet, m, s, nLearn, cache, System.out::println));
-						System.out.print(t);
-						all.append(t);
-					}
-					System.out.print("\n" + all);
-					System.out.printf(Locale.ROOT, "peak memory (resident): %.0f MiB%n", Benchmark.peakMemoryBytes() / 1048576.0);
-					return 0;
-				}
-				List<Path> sets = new java.util.ArrayList<>();
-				sets.add(a.path("data", true));
-				if (a.has("data2")) sets.add(a.path("data2", true));
-				LearnSettings s = settings(a);
-				int nLearn = a.integer("learn-images", 5, 1, 1000);
-				int[] g = a.integers("grow", 0, 100);
-				a.checkAllUsed();
-				if (g != null) { // the loose-box sensitivity table instead
-					StringBuilder t = new StringBuilder();
-					for (Path set : sets) t.append(Benchmark.sensitivity(set, s, nLearn, g, System.out::println));
-					System.out.print("\n" + t);
-					return 0;
-				}
-				StringBuilder all = new StringBuilder();
-				for (Path set : sets) {
-					System.out.println("== " + set);
-					var rows = Benchmark.run(set, s, nLearn, System.out::println);
-					String t = Benchmark.table(set.getFileName().toString(), rows);
-					System.out.print(t);
-					all.append(t);
-				}
-				System.out.print("\n" + all);
-				System.out.printf(Locale.ROOT, "peak memory (resident): %.0f MiB%n", Benchmark.peakMemoryBytes() / 1048576.0);
-				return 0;
-			}
-			case "tour" -> {
-				if (help) return print("corral tour [--out DIR] [--steps N]\n  on a display (xvfb-run -a on a server): boxes ten demo objects in the ROI Manager, learns, masks,\n  and saves screenshots of the learning plot, the outlines and the windows (default out: corral-tour)\n");
-				Args a = new Args(job, argv, 1, Set.of());
-				Path out = Path.of(a.str("out", "corral-tour"));
-				int steps = a.integer("steps", LearnSettings.QUICK_STEPS, 1, 1_000_000);
-				a.checkAllUsed();
-				try {
-					org.corral.fiji.Tour.run(Path.of("test-images"), out, steps);
-				} catch (CorralException e) {
-					throw e;
-				} catch (Exception e) {
-					throw new CorralException("tour failed: " + e, e);
-				}
-				System.out.println("screenshots in " + out.toAbsolutePath() + ": learning-plot.png, outlines-over-image.png, screen.png; table boxes-table.csv");
-				return 0;
-			}
+		return switch (job) {
+			case "learn" -> learnJob(job, argv, help);
+			case "mask-boxes" -> maskBoxesJob(job, argv, help);
+			case "mask-image" -> maskImageJob(job, argv, help);
+			case "merge" -> mergeJob(job, argv, help);
+			case "cluster-script" -> clusterScriptJob(job, argv, help);
+			case "score" -> scoreJob(job, argv, help);
+			case "demo" -> demoJob(job, argv, help);
+			case "benchmark" -> benchmarkJob(job, argv, help);
+			case "tour" -> tourJob(job, argv, help);
 			default -> throw new CorralException("unknown job '" + job + "'\n" + USAGE);
+		};
+	}
+
+	/** Learns a model from the boxes of a folder. */
+	private static int learnJob(String job, String[] argv, boolean help) {
+		if (help) return print(LEARN_HELP);
+		Args a = new Args(job, argv, 1, Set.of("partial", "all-boxed"));
+		threads(a);
+		Path images = a.path("images", true), model = a.path("model", true), boxes = a.path("boxes", false);
+		LearnSettings s = settings(a);
+		a.checkAllUsed();
+		Map<Path, List<Box>> boxed = BoxedImages.find(images, boxes);
+		AtomicBoolean stop = cancelOnInterrupt();
+		System.out.println(s.background == Supervision.BackgroundMode.FULL ? "background: every pixel outside the boxes (--all-boxed)"
+			: "background: a ring around each box, as some objects may be unboxed (give --all-boxed when every object is boxed)");
+		Learner.Result r = Jobs.learn(boxed, boxes, s, model, printer(stop), note -> System.out.println("note: " + note));
+		System.out.printf(Locale.ROOT, "model written to %s (%s steps, %.3f s/step, constraints met %.3f)%n", model, r.header().counts.steps,
+			r.header().counts.secondsPerStep, r.header().scores.constraintsMet);
+		r.close();
+		return 0;
+	}
+
+	/** Masks every box of a folder, adapting the model to those boxes first (by default). */
+	private static int maskBoxesJob(String job, String[] argv, boolean help) {
+		if (help) return print(String.format(Locale.ROOT, """
+			corral mask-boxes --images DIR --out DIR [--model FILE] [--boxes FILE.csv] [options]
+			  writes OUT/NAME.labels.tif (label k = mask of the k-th box of NAME), OUT/NAME.outlines.zip,
+			  OUT/NAME.objects.csv (one row per box, with fit figures and flags), OUT/NAME.overlay.png,
+			  and OUT/corral-run.json (the model used). OUT must not be the image folder. Resumable:
+			  images already done are skipped; a failing image is listed in OUT/corral-failures.csv
+			  and the others go on (exit code 3).
+			  By default the model first continues learning on the boxes being masked (one step per
+			  box, %d to %d steps; without --model it learns from scratch on them), then each mask is
+			  fitted to its box (it crosses every row and column of the box, and fills at most %.0f %%%%).
+			  --model FILE         model to start from (optional)
+			  --no-adapt           mask with the model as it is
+			  --adapt-steps N      steps of that learning (default: the rule above)
+			  --save-adapted FILE  also save the adapted model
+			  --margin PX          boxes may be up to PX too large on each side
+			  --part K/N           only share K of N of the images (sorted by name, every N-th from
+			                       the K-th); adaptation then learns from that share's boxes only
+			  --seed S, --band W, --all-boxed, --threads N   as for learn
+			""", Adaptation.MIN_STEPS, Adaptation.MAX_STEPS, 100 * SupervisionSettings.DEFAULT_FILL_MAX).replace("%%", "%"));
+		Args a = new Args(job, argv, 1, Set.of("no-adapt", "partial", "all-boxed"));
+		threads(a);
+		Path images = a.path("images", true), model = a.path("model", false), out = a.path("out", true), boxes = a.path("boxes", false);
+		boolean adapt = !a.has("no-adapt");
+		int steps = a.integer("adapt-steps", 0, 1, 1_000_000);
+		Path save = a.path("save-adapted", false);
+		Share share = Share.parse(a.str("part", null));
+		LearnSettings s = settings(a);
+		a.checkAllUsed();
+		if (!adapt && model == null) throw new CorralException("mask-boxes: --no-adapt needs --model FILE");
+		Map<Path, List<Box>> boxed = BoxedImages.find(images, boxes);
+		if (boxed.isEmpty()) throw new CorralException("No boxes found for the images in " + images);
+		AtomicBoolean stop = cancelOnInterrupt();
+		return report(Jobs.maskBoxes(boxed, boxes, model, new Jobs.AdaptPlan(adapt, steps, save, s), share, out, stop::get, printer(stop), System.out::println));
+	}
+
+	/** Masks every object of a folder's images, no boxes needed. */
+	private static int maskImageJob(String job, String[] argv, boolean help) {
+		if (help) return print("""
+			corral mask-image --images DIR --model FILE --out DIR [--object-size PX] [--propose] [--threads N]
+			  masks every object of every image, no boxes needed: OUT/NAME.labels.tif (one id per object),
+			  OUT/NAME.outlines.zip, OUT/NAME.objects.csv (area, mean probability, confidence, flags),
+			  OUT/NAME.overlay.png. OUT must not be the image folder. Resumable: images already done
+			  are skipped; a failing image is listed in OUT/corral-failures.csv, the others go on (exit 3).
+			  --object-size PX  typical object side in these images (default: measured in a first pass)
+			  --propose         also write the objects as boxes: OUT/corral-proposed-boxes.csv (learner's
+			                    form) and OUT/NAME.proposed-boxes.zip, to correct and learn again
+			  --part K/N        only share K of N of the images (sorted by name, every N-th from the K-th);
+			                    folder-level files get the share's name (corral-failures.part-K-of-N.csv),
+			                    and corral merge joins them; cluster-script writes the whole SLURM job
+			  OUT/corral-objects.csv: every image's objects under one header (also written by merge)
+			""");
+		Args a = new Args(job, argv, 1, Set.of("propose"));
+		threads(a);
+		Path images = a.path("images", true), model = a.path("model", true), out = a.path("out", true);
+		double size = a.number("object-size", 0, 0, 1e6);
+		boolean propose = a.has("propose");
+		Share share = Share.parse(a.str("part", null));
+		a.checkAllUsed();
+		List<Path> files = BoxedImages.images(images);
+		if (files.isEmpty()) throw new CorralException("No images in " + images);
+		AtomicBoolean stop = cancelOnInterrupt();
+		FolderRun.Report rep;
+		try (ModelRunner m = ModelRunner.open(model)) {
+			rep = Jobs.maskImages(files, share, m, out, size, propose, stop::get, System.out::println);
 		}
+		return report(rep);
+	}
+
+	/** Joins the outputs of a folder run done in shares. */
+	private static int mergeJob(String job, String[] argv, boolean help) {
+		if (help) return print("""
+			corral merge --out DIR [--images DIR [--job mask-image|mask-boxes] [--boxes FILE.csv]]
+			  after a folder run in shares (--part K/N): joins the shares' failure lists and proposed
+			  boxes into OUT/corral-failures.csv and OUT/corral-proposed-boxes.csv, and writes
+			  OUT/corral-objects.csv (every image's objects, image name first). With --images, images
+			  neither done nor failed are listed as not run yet (for mask-boxes, images with boxes).
+			  Exit code 3 when an image failed or was not run.
+			""");
+		Args a = new Args(job, argv, 1, Set.of());
+		Path out = a.path("out", true), images = a.path("images", false), boxes = a.path("boxes", false);
+		String kind = a.str("job", "mask-image");
+		a.checkAllUsed();
+		if (!org.corral.cluster.SlurmScript.JOBS.contains(kind)) throw new CorralException("merge: --job must be mask-image or mask-boxes, got '" + kind + "'");
+		List<Path> expected = images == null ? null
+			: kind.equals("mask-boxes") ? List.copyOf(BoxedImages.find(images, boxes).keySet()) : BoxedImages.images(images);
+		FolderMerge.Report r = FolderMerge.merge(out, expected);
+		System.out.println(r.summary());
+		return r.complete() ? 0 : 3;
+	}
+
+	/** Writes the SLURM job array of a folder run. */
+	private static int clusterScriptJob(String job, String[] argv, boolean help) {
+		if (help) return print("""
+			corral cluster-script --parts N [--time T] [--mem M] [--partition P] [--threads C] [--launcher CMD] -- JOB
+			  writes a SLURM job array for a folder run, JOB being a mask-image or mask-boxes command line
+			  (for example: -- mask-image --images DIR --model FILE --out DIR): task i runs share i+1 of N
+			  (--part), then a merge job (corral merge) joins the shares' tables. The scripts go to
+			  OUT/corral-slurm/ (array.sbatch, merge.sbatch, logs/); the sbatch command is printed, not run.
+			  --parts N      shares = array tasks (required)
+			  --time T       time limit per task (default 01:00:00)
+			  --mem M        memory per task (default 4G; Java gets 60 %, the rest is for the engine)
+			  --partition P  partition (default: the cluster's default)
+			  --threads C    cores per task (default 2)
+			  --launcher CMD the command that runs Corral on the nodes (default: this ./corral)
+			  Same model, same images, same --threads: the merged outputs are byte for byte those of one
+			  run of the whole folder. mask-boxes adapts per share unless --no-adapt is given.
+			""");
+		int dash = List.of(argv).indexOf("--");
+		if (dash < 0) throw new CorralException("cluster-script: give the folder job after --, for example: -- mask-image --images DIR --model FILE --out DIR");
+		String[] own = java.util.Arrays.copyOfRange(argv, 0, dash);
+		List<String> jobArgs = List.of(argv).subList(dash + 1, argv.length);
+		Args a = new Args(job, own, 1, Set.of());
+		int parts = a.integer("parts", 0, 1, 100_000);
+		if (parts == 0) throw new CorralException("cluster-script: --parts N is required");
+		String launcher = a.str("launcher", null);
+		var settings = new org.corral.cluster.SlurmScript.Settings(jobArgs, parts, a.str("time", "01:00:00"), a.str("mem", "4G"), a.str("partition", null),
+			a.integer("threads", 2, 1, 4096), launcher == null ? org.corral.cluster.SlurmScript.defaultLauncher() : List.of(launcher), Path.of(""));
+		a.checkAllUsed();
+		var sc = org.corral.cluster.SlurmScript.write(settings);
+		System.out.println("wrote " + sc.array() + " (" + parts + " array tasks) and " + sc.merge() + "; logs go to " + sc.logs());
+		if (jobArgs.get(0).equals("mask-boxes") && !jobArgs.contains("--no-adapt"))
+			System.out.println("note: each share adapts the model to its own boxes; for one model across shares, adapt once (mask-boxes --save-adapted, or learn) and give --no-adapt");
+		System.out.println("submit with:\n  " + sc.submit());
+		return 0;
+	}
+
+	/** Scores label images against reference labels. */
+	private static int scoreJob(String job, String[] argv, boolean help) {
+		if (help) return print("""
+			corral score --labels DIR --reference DIR [--out FILE.csv]
+			  per image and overall (ALL): per-object Dice and IoU, pixel Dice, precision / recall / F1
+			  at IoU 0.5, mean AP over IoU 0.5:0.05:0.95 (2018 Data Science Bowl form)
+			""");
+		Args a = new Args(job, argv, 1, Set.of());
+		Path labels = a.path("labels", true), ref = a.path("reference", true), out = a.path("out", false);
+		a.checkAllUsed();
+		System.out.print(Jobs.score(labels, ref, out));
+		return 0;
+	}
+
+	/** Learns, masks and scores the bundled demo images. */
+	private static int demoJob(String job, String[] argv, boolean help) {
+		if (help) return print("corral demo [--out DIR] [--steps N] [learn options]\n  learns from the boxes of test-images/ (default " + LearnSettings.QUICK_STEPS + " steps), masks them, scores them against\n  test-images/reference (default out: corral-demo-output)\n");
+		Args a = new Args(job, argv, 1, Set.of("partial", "all-boxed"));
+		threads(a);
+		Path out = Path.of(a.str("out", "corral-demo-output"));
+		LearnSettings s = settings(a, LearnSettings.QUICK_STEPS);
+		a.checkAllUsed();
+		Demo.run(Path.of("test-images"), out, s, printer(cancelOnInterrupt()), System.out::println);
+		return 0;
+	}
+
+	/** The benchmarks: split, cross-collection, corrections, speed. */
+	private static int benchmarkJob(String job, String[] argv, boolean help) {
+		if (help) return print("corral benchmark --data DIR [--data2 DIR] [--grow 0,2,4,8] [learn options]\n  each DIR is a reference set (images/, labels/, boxes.csv): learn on the first 5 images, mask the other 5;\n  prints the figures of Corral, the box itself and Otsu in the box; with boxes (tight) and without (whole image).\n  --grow LIST  instead: per-object Dice with every box enlarged by each amount, without and with --margin\n"
+			+ "corral benchmark --learn A --mask B[,C...] [--cache DIR]\n  the cross-collection protocol (README)\n"
+			+ "corral benchmark --corrections SET [--rounds N] [--fraction F]\n  outlines as corrections: per round, the worst-masked F (default 0.1) of the learning images' objects\n  get their reference outlines and learning starts again; per-object Dice of corrected, neighbours, held-out\n"
+			+ "corral benchmark --speed [--images DIR [--boxes FILE.csv]] [--model FILE] [--steps N]\n  where the time goes: learning s/step (" + SPEED_STEPS
+			+ " steps unless --model), then each stage of masking the folder (default test-images/) in MP/s,\n  the network's GFLOP/s against a matrix product measured in the same run, end-to-end rates and peak memory\n");
+		Args a = new Args(job, argv, 1, Set.of("partial", "all-boxed", "speed"));
+		threads(a);
+		Path corrections = a.path("corrections", false);
+		if (corrections != null) return correctionsBenchmark(a, corrections);
+		if (a.has("speed")) return speedBenchmark(a);
+		if (a.has("learn")) return crossBenchmark(a);
+		return splitBenchmark(a);
+	}
+
+	/** Outlines as corrections, round by round. */
+	private static int correctionsBenchmark(Args a, Path corrections) {
+		int rounds = a.integer("rounds", 2, 1, 100);
+		double fraction = a.number("fraction", 0.1, 0.001, 1);
+		LearnSettings s = settings(a);
+		a.checkAllUsed();
+		System.out.printf(Locale.ROOT, "%s: learn on the first 5 images; each round outlines the worst-masked %.0f %% of their objects and learns again%n",
+			corrections, 100 * fraction);
+		org.corral.workflow.CorrectionRounds.run(corrections, 5, rounds, fraction, s, System.out::println);
+		return 0;
+	}
+
+	/** Where the time goes, stage by stage. */
+	private static int speedBenchmark(Args a) {
+		Path images = a.path("images", false);
+		Path boxes = a.path("boxes", false);
+		Path model = a.path("model", false);
+		LearnSettings s = settings(a, SPEED_STEPS);
+		a.checkAllUsed();
+		if (images == null) {
+			images = Path.of("test-images", "images");
+			if (boxes == null) boxes = Path.of("test-images", "boxes.csv");
+		}
+		System.out.print(org.corral.workflow.SpeedBenchmark.run(images, boxes, model, s, System.out::println));
+		return 0;
+	}
+
+	/** The cross-collection protocol: learn on A, mask B. */
+	private static int crossBenchmark(Args a) {
+		Path learnSet = a.path("learn", true);
+		List<Path> maskSets = new java.util.ArrayList<>();
+		for (String m : a.str("mask", "").split(",")) if (!m.isBlank()) maskSets.add(Path.of(m.trim()));
+		if (maskSets.isEmpty()) throw new CorralException("benchmark: --learn needs --mask SET[,SET...]");
+		LearnSettings s = settings(a);
+		int nLearn = a.integer("learn-images", 5, 1, 1000);
+		Path cache = a.path("cache", false);
+		a.checkAllUsed();
+		StringBuilder all = new StringBuilder();
+		for (Path m : maskSets) {
+			System.out.println("== learn " + learnSet.getFileName() + ", mask " + m.getFileName());
+			String t = org.corral.workflow.CrossBenchmark.table(learnSet.getFileName().toString(), m.getFileName().toString(),
+				org.corral.workflow.CrossBenchmark.run(learnSet, m, s, nLearn, cache, System.out::println));
+			System.out.print(t);
+			all.append(t);
+		}
+		System.out.print("\n" + all);
+		System.out.printf(Locale.ROOT, "peak memory (resident): %.0f MiB%n", Benchmark.peakMemoryBytes() / 1048576.0);
+		return 0;
+	}
+
+	/** Learn on the first images of each set, mask the others; or the loose-box table (--grow). */
+	private static int splitBenchmark(Args a) {
+		List<Path> sets = new java.util.ArrayList<>();
+		sets.add(a.path("data", true));
+		if (a.has("data2")) sets.add(a.path("data2", true));
+		LearnSettings s = settings(a);
+		int nLearn = a.integer("learn-images", 5, 1, 1000);
+		int[] g = a.integers("grow", 0, 100);
+		a.checkAllUsed();
+		if (g != null) { // the loose-box sensitivity table instead
+			StringBuilder t = new StringBuilder();
+			for (Path set : sets) t.append(Benchmark.sensitivity(set, s, nLearn, g, System.out::println));
+			System.out.print("\n" + t);
+			return 0;
+		}
+		StringBuilder all = new StringBuilder();
+		for (Path set : sets) {
+			System.out.println("== " + set);
+			var rows = Benchmark.run(set, s, nLearn, System.out::println);
+			String t = Benchmark.table(set.getFileName().toString(), rows);
+			System.out.print(t);
+			all.append(t);
+		}
+		System.out.print("\n" + all);
+		System.out.printf(Locale.ROOT, "peak memory (resident): %.0f MiB%n", Benchmark.peakMemoryBytes() / 1048576.0);
+		return 0;
+	}
+
+	/** The on-screen tour with screenshots. */
+	private static int tourJob(String job, String[] argv, boolean help) {
+		if (help) return print("corral tour [--out DIR] [--steps N]\n  on a display (xvfb-run -a on a server): boxes ten demo objects in the ROI Manager, learns, masks,\n  and saves screenshots of the learning plot, the outlines and the windows (default out: corral-tour)\n");
+		Args a = new Args(job, argv, 1, Set.of());
+		Path out = Path.of(a.str("out", "corral-tour"));
+		int steps = a.integer("steps", LearnSettings.QUICK_STEPS, 1, 1_000_000);
+		a.checkAllUsed();
+		try {
+			org.corral.fiji.Tour.run(Path.of("test-images"), out, steps);
+		} catch (CorralException e) {
+			throw e;
+		} catch (Exception e) {
+			throw new CorralException("tour failed: " + e, e);
+		}
+		System.out.println("screenshots in " + out.toAbsolutePath() + ": learning-plot.png, outlines-over-image.png, screen.png; table boxes-table.csv");
+		return 0;
 	}
 
 	/** Prints a folder run's summary; exit code 3 when some image failed. */
