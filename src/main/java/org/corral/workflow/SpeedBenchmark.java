@@ -27,6 +27,7 @@ import org.corral.image.Normalise;
 import org.corral.image.PlanarImage;
 import org.corral.instances.BoxMasks;
 import org.corral.instances.ImageMasks;
+import org.corral.instances.SeededWatershed;
 import org.corral.io.ImageFiles;
 import org.corral.io.RoiSets;
 import org.corral.predict.ModelRunner;
@@ -95,7 +96,7 @@ public final class SpeedBenchmark {
 		try (model; NDManager m = NDManager.newBaseManager()) {
 			long flops = model.net().flopsPerPixel();
 			Stage read = new Stage("read"), norm = new Stage("normalise"), net = new Stage("network, 1 pass, tiles of " + TiledPredictor.defaultTile(model.net())), flips = new Stage("network, 4 flips (box masks)"),
-				inst = new Stage("instance stage (whole image)"), edm = new Stage("  of which distance map"), shed = new Stage("  of which watershed"),
+				inst = new Stage("instance stage (whole image)"), edm = new Stage("  of which seeds"), shed = new Stage("  of which flooding"),
 				outl = new Stage("outlines"), write = new Stage("writing"), fit = new Stage("box masks, fitted");
 			TiledPredictor one = new TiledPredictor(model.net(), m), four = new TiledPredictor(model.net(), m).optFlips(4);
 			TiledPredictor big = new TiledPredictor(model.net(), m, 640, 32);
@@ -134,14 +135,26 @@ public final class SpeedBenchmark {
 					ImageMasks.Result res = ImageMasks.make(maps[0], model.instanceMap(maps), raw.width, raw.height, model.header().objectSize, ImageMasks.THRESHOLD,
 						ImageMasks.PROMINENCE);
 					inst.add(t, mp);
-					// the library calls inside the instance stage, timed alone on the same mask
-					ByteProcessor bin = new ByteProcessor(raw.width, raw.height);
-					for (int i = 0; i < maps[0].length; i++) if (maps[0][i] >= ImageMasks.THRESHOLD) bin.set(i, 255);
+					// its two main steps, timed alone on the same maps: the seeds (maxima of the instance map, or of
+					// the distance map without one) and the flooding from them
+					boolean[] mask = new boolean[maps[0].length];
+					for (int i = 0; i < mask.length; i++) mask[i] = maps[0][i] >= ImageMasks.THRESHOLD;
 					t = System.nanoTime();
-					FloatProcessor d = new EDM().makeFloatEDM(bin, 0, false);
+					float[] centre = model.instanceMap(maps);
+					FloatProcessor land;
+					if (centre != null) land = new FloatProcessor(raw.width, raw.height, centre.clone());
+					else {
+						ByteProcessor bin = new ByteProcessor(raw.width, raw.height);
+						for (int i = 0; i < mask.length; i++) if (mask[i]) bin.set(i, 255);
+						land = new EDM().makeFloatEDM(bin, 0, false);
+					}
+					ByteProcessor seeds = new MaximumFinder().findMaxima(land, centre != null ? ImageMasks.SEED_PROMINENCE : 0.7, ImageProcessor.NO_THRESHOLD,
+						MaximumFinder.SINGLE_POINTS, false, centre == null);
 					edm.add(t, mp);
+					int[] lab = new int[mask.length];
+					for (int i = 0, k = 0; i < lab.length; i++) if (mask[i] && seeds.get(i) != 0) lab[i] = ++k;
 					t = System.nanoTime();
-					new MaximumFinder().findMaxima(d, 0.7, ImageProcessor.NO_THRESHOLD, MaximumFinder.SEGMENTED, false, true);
+					SeededWatershed.flood((float[]) land.getPixels(), mask, lab, raw.width, raw.height);
 					shed.add(t, mp);
 					t = System.nanoTime();
 					var rois = RoiSets.outlines(res.labels(), raw.width, raw.height, res.count(), null);

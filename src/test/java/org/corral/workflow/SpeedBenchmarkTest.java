@@ -18,7 +18,7 @@ class SpeedBenchmarkTest {
 		s.steps = 4;
 		String out = SpeedBenchmark.run(Path.of("test-images", "images"), Path.of("test-images", "boxes.csv"), null, s, l -> {});
 		for (String stage : new String[] {"read", "normalise", "network, 1 pass, tiles of 352", "network, 1 pass, tiles of 640", "network, 4 flips (box masks)", "box masks, fitted", "instance stage (whole image)",
-			"  of which distance map", "  of which watershed", "outlines", "writing"}) {
+			"  of which seeds", "  of which flooding", "outlines", "writing"}) {
 			Matcher m = Pattern.compile("(?m)^" + Pattern.quote(stage) + " +([0-9.]+) +([0-9.]+)$").matcher(out);
 			assertTrue(m.find(), "row '" + stage + "' in\n" + out);
 			assertTrue(Double.parseDouble(m.group(2)) > 0, stage + " has a rate");
