@@ -13,10 +13,12 @@ import java.util.List;
 /**
  * Instances on an image without boxes: threshold the probability map, then split touching objects
  * with a seeded watershed on the distance transform (the classic binary watershed, after
- * "Watersheds in digital spaces", IEEE PAMI 1991; seeds = distance maxima that stand
- * out by more than a prominence), using ImageJ's EDM and MaximumFinder. With the network's instance
- * map (the default), the seeds are its peaks instead and the watershed runs on it, and an object must
- * reach its core height and be sure on average. Objects far smaller than the learned object size are dropped as specks.
+ * "Watersheds in digital spaces", IEEE PAMI 1991; seeds = distance maxima that stand out by more
+ * than a prominence, found by ImageJ's MaximumFinder on its EDM). With the network's instance map
+ * (the default), the seeds are its peaks instead and the watershed runs on it, and an object must
+ * reach its core height and be sure on average. The flooding is {@link SeededWatershed}. Objects far
+ * smaller than the learned object size are dropped as specks. Objects are numbered in the raster
+ * order of their first pixel.
  */
 public final class ImageMasks {
 	private ImageMasks() {}
