@@ -95,6 +95,34 @@ class CommandsTest {
 	}
 
 	@Test
+	void anImgLib2ImageIsMaskedThroughTheCommandService() throws Exception {
+		// what a SciJava script hands over (#@ Img): an ArrayImg of the demo's 16-bit pixels, with the ImgLib2 type
+		ImagePlus imp = IJ.openImage(ReferenceData.demo().resolve("images").resolve("seedcoat-04.tif").toString());
+		int w = imp.getWidth(), h = imp.getHeight();
+		var img = net.imglib2.img.array.ArrayImgs.unsignedShorts((short[]) imp.getProcessor().getPixels(), w, h);
+		CommandModule m = run(MasksForImg.class, Map.of("image", img, "model", model.toFile()));
+		@SuppressWarnings("unchecked")
+		net.imglib2.img.Img<net.imglib2.type.numeric.integer.IntType> labels = (net.imglib2.img.Img<net.imglib2.type.numeric.integer.IntType>) m.getOutput("labels");
+		assertEquals(w, labels.dimension(0));
+		assertEquals(h, labels.dimension(1));
+		int count = (Integer) m.getOutput("count");
+		assertTrue(count >= 10, "objects found: " + count);
+		// the same objects as the ImagePlus route
+		int[] expected;
+		try (org.corral.predict.ModelRunner r = org.corral.predict.ModelRunner.open(model)) {
+			expected = org.corral.workflow.WholeImage.mask(r, org.corral.io.ImageFiles.planes(imp, 1, 1), 0).result().labels();
+		}
+		var c = net.imglib2.view.Views.flatIterable(labels).cursor();
+		for (int i = 0; c.hasNext(); i++) assertEquals(expected[i], c.next().get(), "label at pixel " + i);
+		// a stack is refused with a message, not read as channels
+		var stack = net.imglib2.img.array.ArrayImgs.floats(20, 20, 7);
+		var e = org.junit.jupiter.api.Assertions.assertThrows(Exception.class, () -> run(MasksForImg.class, Map.of("image", stack, "model", model.toFile())));
+		Throwable cause = e;
+		while (cause.getCause() != null && !(cause instanceof CorralException)) cause = cause.getCause();
+		assertTrue(String.valueOf(cause.getMessage()).contains("7 planes"), "message: " + cause.getMessage());
+	}
+
+	@Test
 	void quickModeLearnsWhenNoModelIsGiven() throws Exception {
 		ImagePlus imp = boxed("seedcoat-03.tif");
 		Map<String, Object> in = new HashMap<>(Map.of("image", imp, "steps", "20", "keep", "false"));
