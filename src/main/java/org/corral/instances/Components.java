@@ -1,6 +1,8 @@
 package org.corral.instances;
 
-import java.util.Arrays;
+import ij.process.ByteProcessor;
+import ij.process.FloodFiller;
+
 
 /** Connected components and hole filling on binary masks of a rectangle (pure Java). */
 public final class Components {
@@ -33,36 +35,27 @@ public final class Components {
 		return lab;
 	}
 
-	/** Sets to true every false pixel that the background cannot reach from the rectangle's border. */
+	/**
+	 * Sets to true every false pixel that the background cannot reach from the rectangle's border
+	 * (4-connected), with ImageJ's scan-line {@link FloodFiller}: the background is flooded from
+	 * every border pixel, and what it did not reach is a hole.
+	 */
 	public static void fillHoles(boolean[] mask, int w, int h) {
-		boolean[] outside = new boolean[w * h];
-		int[] stack = new int[w * h];
-		int sp = 0;
+		final int object = 255, reached = 127;
+		ByteProcessor bp = new ByteProcessor(w, h);
+		byte[] px = (byte[]) bp.getPixels();
+		for (int i = 0; i < mask.length; i++) if (mask[i]) px[i] = (byte) object;
+		bp.setValue(reached);
+		FloodFiller ff = new FloodFiller(bp);
 		for (int x = 0; x < w; x++) {
-			sp = seed(mask, outside, stack, sp, x);
-			sp = seed(mask, outside, stack, sp, (h - 1) * w + x);
+			if (bp.get(x, 0) == 0) ff.fill(x, 0);
+			if (bp.get(x, h - 1) == 0) ff.fill(x, h - 1);
 		}
 		for (int y = 0; y < h; y++) {
-			sp = seed(mask, outside, stack, sp, y * w);
-			sp = seed(mask, outside, stack, sp, y * w + w - 1);
+			if (bp.get(0, y) == 0) ff.fill(0, y);
+			if (bp.get(w - 1, y) == 0) ff.fill(w - 1, y);
 		}
-		while (sp > 0) {
-			int p = stack[--sp];
-			int x = p % w, y = p / w;
-			if (x > 0) sp = seed(mask, outside, stack, sp, p - 1);
-			if (x < w - 1) sp = seed(mask, outside, stack, sp, p + 1);
-			if (y > 0) sp = seed(mask, outside, stack, sp, p - w);
-			if (y < h - 1) sp = seed(mask, outside, stack, sp, p + w);
-		}
-		for (int i = 0; i < mask.length; i++) if (!outside[i]) mask[i] = true;
-	}
-
-	private static int seed(boolean[] mask, boolean[] outside, int[] stack, int sp, int p) {
-		if (!mask[p] && !outside[p]) {
-			outside[p] = true;
-			stack[sp++] = p;
-		}
-		return sp;
+		for (int i = 0; i < mask.length; i++) if (px[i] == 0) mask[i] = true;
 	}
 
 	/** Keeps only component {@code keep} of a label array, as a mask. */
