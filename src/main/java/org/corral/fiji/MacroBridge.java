@@ -23,11 +23,11 @@ import java.util.regex.Pattern;
 
 import org.corral.CorralException;
 import org.scijava.Context;
-import org.scijava.ItemIO;
 import org.scijava.command.Command;
+import org.scijava.command.CommandInfo;
 import org.scijava.command.CommandModule;
 import org.scijava.command.CommandService;
-import org.scijava.plugin.Parameter;
+import org.scijava.module.ModuleItem;
 
 /**
  * Lets ImageJ 1.x macros call the Corral commands as {@code run("Corral Learn from Boxes", "steps=200 ...")}
@@ -126,13 +126,12 @@ public final class MacroBridge implements PlugIn {
 		else IJ.error("Corral", msg);
 	}
 
-	static Map<String, Object> inputs(Class<?> cls, String options) {
+	/** The command's inputs as SciJava describes them (its {@link CommandInfo}), filled from the macro's options. */
+	static Map<String, Object> inputs(Class<? extends Command> cls, String options) {
 		Map<String, Object> in = new HashMap<>();
-		for (Field f : cls.getDeclaredFields()) {
-			Parameter p = f.getAnnotation(Parameter.class);
-			if (p == null || p.type() == ItemIO.OUTPUT) continue;
-			String key = f.getName();
-			Class<?> t = f.getType();
+		for (ModuleItem<?> item : info(cls).inputs()) {
+			String key = item.getName();
+			Class<?> t = item.getType();
 			if (t == boolean.class) {
 				String v = Macro.getValue(options, key, null);
 				boolean word = Pattern.compile("(^|\\s)" + Pattern.quote(key) + "(\\s|$)").matcher(options).find();
@@ -152,18 +151,23 @@ public final class MacroBridge implements PlugIn {
 		return in;
 	}
 
-	private static void publish(Class<?> cls, CommandModule m) {
-		for (Field f : cls.getDeclaredFields()) {
-			Parameter p = f.getAnnotation(Parameter.class);
-			if (p == null || p.type() != ItemIO.OUTPUT) continue;
-			Object v = m.getOutput(f.getName());
+	private static CommandInfo info(Class<? extends Command> cls) {
+		CommandInfo info = context().service(CommandService.class).getCommand(cls);
+		if (info == null) throw new IllegalStateException("SciJava does not know the command " + cls.getName());
+		return info;
+	}
+
+	private static void publish(Class<? extends Command> cls, CommandModule m) {
+		for (ModuleItem<?> item : info(cls).outputs()) {
+			String name = item.getName();
+			Object v = m.getOutput(name);
 			if (v instanceof ImagePlus imp) imp.show();
 			else if (v instanceof ResultsTable rt) { // becomes the system Results table: nResults, getResult()
 				ij.plugin.filter.Analyzer.setResultsTable(rt);
 				rt.show("Results");
 			}
 			else if (v != null) {
-				LAST.put(f.getName(), v.toString());
+				LAST.put(name, v.toString());
 				IJ.log("Corral: " + v);
 			}
 		}
