@@ -24,7 +24,7 @@ public final class PlanarImage implements RowReader {
 	/** A copy of rows {@code y0 .. y1 - 1}, with the calibration. */
 	@Override
 	public PlanarImage rows(int y0, int y1) {
-		if (y0 < 0 || y1 > height || y0 >= y1) throw new IllegalArgumentException("rows " + y0 + ".." + y1 + " of an image of " + height);
+		RowReader.checkRows(y0, y1, height);
 		float[][] c = new float[channels.length][];
 		for (int k = 0; k < c.length; k++) c[k] = java.util.Arrays.copyOfRange(channels[k], y0 * width, y1 * width);
 		PlanarImage p = new PlanarImage(width, y1 - y0, c);

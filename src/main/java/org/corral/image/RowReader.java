@@ -15,6 +15,11 @@ public interface RowReader {
 	/** Rows {@code y0 .. y1 - 1} as a float image of their own. */
 	PlanarImage rows(int y0, int y1);
 
+	/** Refuses a row range outside {@code 0 .. height} or empty, for every reader alike. */
+	static void checkRows(int y0, int y1, int height) {
+		if (y0 < 0 || y1 > height || y0 >= y1) throw new IllegalArgumentException("rows " + y0 + ".." + y1 + " of an image of " + height);
+	}
+
 	/** Every row at once. */
 	default PlanarImage all() {
 		return rows(0, height());

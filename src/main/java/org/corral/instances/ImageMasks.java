@@ -89,21 +89,10 @@ public final class ImageMasks {
 		double size = objectSize > 0 ? objectSize : 20;
 		if (split) {
 			for (int i = 0; i < mask.length; i++) bin.set(i, mask[i] ? 255 : 0);
-			FloatProcessor land;
-			ByteProcessor seeds;
-			if (centre != null) {
-				land = new FloatProcessor(w, h, centre.clone());
-				new GaussianBlur().blurGaussian(land, 1.0, 1.0, 0.01);
-				seeds = new MaximumFinder().findMaxima(land, SEED_PROMINENCE, ImageProcessor.NO_THRESHOLD, MaximumFinder.SINGLE_POINTS, false, false);
-			} else {
-				land = new EDM().makeFloatEDM(bin, 0, false);
-				new GaussianBlur().blurGaussian(land, 1.0, 1.0, 0.01); // tames pixel-level ridges
-				seeds = new MaximumFinder().findMaxima(land, Math.max(MIN_PROMINENCE, prominence * size), ImageProcessor.NO_THRESHOLD, MaximumFinder.SINGLE_POINTS, false, true);
-			}
-			lab = new int[w * h];
-			int k = 0;
-			for (int i = 0; i < lab.length; i++) if (mask[i] && seeds.get(i) != 0) lab[i] = ++k;
-			SeededWatershed.flood((float[]) land.getPixels(), mask, lab, w, h);
+			Seeds seeds = seeds(mask, bin, centre, w, h, prominence * size);
+			lab = seeds.labels();
+			int k = seeds.count();
+			SeededWatershed.flood(seeds.landscape(), mask, lab, w, h);
 			// a part of the mask that no seed reached is an object of its own (the rules below judge it)
 			boolean[] rest = new boolean[w * h];
 			for (int i = 0; i < rest.length; i++) rest[i] = mask[i] && lab[i] == 0;
@@ -127,6 +116,28 @@ public final class ImageMasks {
 		}
 		for (int i = 0; i < lab.length; i++) lab[i] = remap[lab[i]];
 		return new Result(lab, n, describe(lab, n, prob, w, h, size, top, imageHeight));
+	}
+
+	/** The landscape the watershed floods and its seeds, each seed its own label (1..count), 0 elsewhere. */
+	public record Seeds(float[] landscape, int[] labels, int count) {}
+
+	/**
+	 * The seeds of the watershed inside {@code mask} ({@code bin} is the same mask as an 8-bit image):
+	 * the peaks of the instance map that stand out by {@link #SEED_PROMINENCE}, or without one the
+	 * maxima of the distance transform that stand out by {@code distanceProminence} px (at least
+	 * {@link #MIN_PROMINENCE}); either landscape is smoothed first (sigma 1 px), which tames
+	 * pixel-level ridges.
+	 */
+	public static Seeds seeds(boolean[] mask, ByteProcessor bin, float[] centre, int w, int h, double distanceProminence) {
+		FloatProcessor land = centre != null ? new FloatProcessor(w, h, centre.clone()) : new EDM().makeFloatEDM(bin, 0, false);
+		new GaussianBlur().blurGaussian(land, 1.0, 1.0, 0.01);
+		ByteProcessor points = centre != null
+			? new MaximumFinder().findMaxima(land, SEED_PROMINENCE, ImageProcessor.NO_THRESHOLD, MaximumFinder.SINGLE_POINTS, false, false)
+			: new MaximumFinder().findMaxima(land, Math.max(MIN_PROMINENCE, distanceProminence), ImageProcessor.NO_THRESHOLD, MaximumFinder.SINGLE_POINTS, false, true);
+		int[] lab = new int[w * h];
+		int k = 0;
+		for (int i = 0; i < lab.length; i++) if (mask[i] && points.get(i) != 0) lab[i] = ++k;
+		return new Seeds((float[]) land.getPixels(), lab, k);
 	}
 
 	/**

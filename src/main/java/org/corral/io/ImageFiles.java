@@ -6,7 +6,6 @@ import ij.ImageStack;
 import ij.io.FileSaver;
 import ij.io.Opener;
 import ij.measure.Calibration;
-import ij.process.ColorProcessor;
 import ij.process.ImageProcessor;
 import ij.process.ShortProcessor;
 
@@ -61,18 +60,12 @@ public final class ImageFiles {
 
 	/** The channels of one stack position (1-based z and t) as a float image; RGB gives 3 channels. */
 	public static PlanarImage planes(ImagePlus imp, int z, int t) {
-		PlanarImage p = rawPlanes(imp, z, t);
-		Calibration cal = imp.getCalibration();
-		if (cal != null && cal.scaled()) {
-			p.pixelWidth = cal.pixelWidth;
-			p.unit = cal.getUnit();
-		}
-		return p;
+		return rowReader(imp, z, t).all();
 	}
 
 	/**
-	 * The channels of one stack position read a band of rows at a time, as {@link #planes} gives
-	 * them whole: the same float values and calibration, without a float copy of the whole plane.
+	 * The channels of one stack position read a band of rows at a time (raw values as float; RGB as
+	 * 3 channels) with the image's calibration, without a float copy of the whole plane.
 	 */
 	public static org.corral.image.RowReader rowReader(ImagePlus imp, int z, int t) {
 		int w = imp.getWidth(), h = imp.getHeight();
@@ -100,7 +93,7 @@ public final class ImageFiles {
 
 			@Override
 			public PlanarImage rows(int y0, int y1) {
-				if (y0 < 0 || y1 > h || y0 >= y1) throw new IllegalArgumentException("rows " + y0 + ".." + y1 + " of an image of " + h);
+				org.corral.image.RowReader.checkRows(y0, y1, h);
 				int n = (y1 - y0) * w;
 				float[][] ch = new float[nc][n];
 				if (rgb) {
@@ -121,29 +114,6 @@ public final class ImageFiles {
 				return p;
 			}
 		};
-	}
-
-	private static PlanarImage rawPlanes(ImagePlus imp, int z, int t) {
-		int w = imp.getWidth(), h = imp.getHeight();
-		ImageStack st = imp.getStack();
-		int nc = imp.getNChannels();
-		if (imp.getType() == ImagePlus.COLOR_RGB) {
-			ColorProcessor cp = (ColorProcessor) st.getProcessor(imp.getStackIndex(1, z, t));
-			float[][] ch = new float[3][w * h];
-			int[] px = (int[]) cp.getPixels();
-			for (int i = 0; i < px.length; i++) {
-				ch[0][i] = (px[i] >> 16) & 0xff;
-				ch[1][i] = (px[i] >> 8) & 0xff;
-				ch[2][i] = px[i] & 0xff;
-			}
-			return new PlanarImage(w, h, ch);
-		}
-		float[][] ch = new float[nc][];
-		for (int c = 1; c <= nc; c++) {
-			ImageProcessor ip = st.getProcessor(imp.getStackIndex(c, z, t));
-			ch[c - 1] = (float[]) ip.convertToFloatProcessor().getPixels();
-		}
-		return new PlanarImage(w, h, ch);
 	}
 
 	/** Stack position (1-based) to (z, t) for {@link #planes}. */

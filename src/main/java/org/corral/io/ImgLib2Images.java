@@ -52,7 +52,7 @@ public final class ImgLib2Images {
 
 			@Override
 			public PlanarImage rows(int y0, int y1) {
-				if (y0 < 0 || y1 > h || y0 >= y1) throw new IllegalArgumentException("rows " + y0 + ".." + y1 + " of an image of " + h);
+				RowReader.checkRows(y0, y1, (int) h);
 				float[][] ch = new float[(int) nc][(int) (w * (y1 - y0))];
 				for (int c = 0; c < nc; c++) {
 					long[] min = {img.min(0), img.min(1) + y0}, max = {img.max(0), img.min(1) + y1 - 1};

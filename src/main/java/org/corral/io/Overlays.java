@@ -21,11 +21,11 @@ public final class Overlays {
 	/** Read in bands of rows, so that a huge image is never held as float. */
 	public static BufferedImage outlines(org.corral.image.RowReader raw, int[] labels) {
 		int w = raw.width(), h = raw.height();
-		float[][] b = Normalise.bounds(raw, 0.5, 99.5); // no normalised copy: huge images stay in bounds
+		float[][] b = Normalise.bounds(raw, 0.5, 99.5); // the whole image's bounds, each band normalised with them
 		BufferedImage img = new BufferedImage(w, h, BufferedImage.TYPE_INT_RGB);
 		int[] line = new int[w];
 		for (int y0 = 0; y0 < h; y0 += BAND_ROWS) {
-			PlanarImage band = raw.rows(y0, Math.min(h, y0 + BAND_ROWS));
+			PlanarImage band = Normalise.with(raw.rows(y0, Math.min(h, y0 + BAND_ROWS)), b);
 			for (int y = y0; y < y0 + band.height; y++) {
 				for (int x = 0; x < w; x++) {
 					int i = y * w + x, j = (y - y0) * w + x;
@@ -34,9 +34,9 @@ public final class Overlays {
 						|| labels[i - 1] != l || labels[i + 1] != l || labels[i - w] != l || labels[i + w] != l);
 					int rgb;
 					if (edge) rgb = colour(l);
-					else if (band.nChannels() >= 3) rgb = (g(band, b, 0, j) << 16) | (g(band, b, 1, j) << 8) | g(band, b, 2, j);
+					else if (band.nChannels() >= 3) rgb = (g(band, 0, j) << 16) | (g(band, 1, j) << 8) | g(band, 2, j);
 					else {
-						int v = g(band, b, 0, j);
+						int v = g(band, 0, j);
 						rgb = (v << 16) | (v << 8) | v;
 					}
 					line[x] = rgb;
@@ -49,10 +49,7 @@ public final class Overlays {
 
 	private static final int BAND_ROWS = 256;
 
-	/** Grey value 0..255 of a raw pixel, as {@link Normalise} would scale it (non-finite pixels black). */
-	private static int g(PlanarImage raw, float[][] b, int c, int i) {
-		float v = raw.channels[c][i], lo = b[0][c], hi = b[1][c];
-		float n = Float.isFinite(v) && hi > lo ? (v - lo) * (1f / (hi - lo)) : 0f;
-		return (int) Math.max(0, Math.min(255, n * 255));
+	private static int g(PlanarImage n, int c, int i) {
+		return (int) Math.max(0, Math.min(255, n.channels[c][i] * 255));
 	}
 }

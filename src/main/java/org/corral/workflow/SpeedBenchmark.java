@@ -5,11 +5,7 @@ import ai.djl.ndarray.NDManager;
 import ai.djl.ndarray.types.Shape;
 
 import ij.ImagePlus;
-import ij.plugin.filter.EDM;
-import ij.plugin.filter.MaximumFinder;
 import ij.process.ByteProcessor;
-import ij.process.FloatProcessor;
-import ij.process.ImageProcessor;
 
 import java.io.IOException;
 import java.nio.file.Files;
@@ -138,23 +134,16 @@ public final class SpeedBenchmark {
 					// its two main steps, timed alone on the same maps: the seeds (maxima of the instance map, or of
 					// the distance map without one) and the flooding from them
 					boolean[] mask = new boolean[maps[0].length];
-					for (int i = 0; i < mask.length; i++) mask[i] = maps[0][i] >= ImageMasks.THRESHOLD;
-					t = System.nanoTime();
-					float[] centre = model.instanceMap(maps);
-					FloatProcessor land;
-					if (centre != null) land = new FloatProcessor(raw.width, raw.height, centre.clone());
-					else {
-						ByteProcessor bin = new ByteProcessor(raw.width, raw.height);
-						for (int i = 0; i < mask.length; i++) if (mask[i]) bin.set(i, 255);
-						land = new EDM().makeFloatEDM(bin, 0, false);
+					ByteProcessor bin = new ByteProcessor(raw.width, raw.height);
+					for (int i = 0; i < mask.length; i++) {
+						mask[i] = maps[0][i] >= ImageMasks.THRESHOLD;
+						if (mask[i]) bin.set(i, 255);
 					}
-					ByteProcessor seeds = new MaximumFinder().findMaxima(land, centre != null ? ImageMasks.SEED_PROMINENCE : 0.7, ImageProcessor.NO_THRESHOLD,
-						MaximumFinder.SINGLE_POINTS, false, centre == null);
-					edm.add(t, mp);
-					int[] lab = new int[mask.length];
-					for (int i = 0, k = 0; i < lab.length; i++) if (mask[i] && seeds.get(i) != 0) lab[i] = ++k;
 					t = System.nanoTime();
-					SeededWatershed.flood((float[]) land.getPixels(), mask, lab, raw.width, raw.height);
+					ImageMasks.Seeds seeds = ImageMasks.seeds(mask, bin, model.instanceMap(maps), raw.width, raw.height, ImageMasks.PROMINENCE * model.header().objectSize);
+					edm.add(t, mp);
+					t = System.nanoTime();
+					SeededWatershed.flood(seeds.landscape(), mask, seeds.labels(), raw.width, raw.height);
 					shed.add(t, mp);
 					t = System.nanoTime();
 					var rois = RoiSets.outlines(res.labels(), raw.width, raw.height, res.count(), null);
