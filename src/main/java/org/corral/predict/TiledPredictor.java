@@ -6,6 +6,11 @@ import ai.djl.ndarray.types.Shape;
 
 import java.util.function.BooleanSupplier;
 
+import net.imglib2.Cursor;
+import net.imglib2.img.array.ArrayImgs;
+import net.imglib2.type.numeric.real.FloatType;
+import net.imglib2.view.Views;
+
 import org.corral.CorralException;
 import org.corral.image.PlanarImage;
 import org.corral.net.UNet;
@@ -95,15 +100,7 @@ public final class TiledPredictor {
 					// tile origins on the pooling grid of the whole image, so every tile pools alike
 					int ox = Math.floorDiv(tx - overlap, m) * m, oy = Math.floorDiv(ty - overlap, m) * m;
 					int iw = roundUp(tx + cw + overlap - ox, m), ih = roundUp(ty + ch + overlap - oy, m);
-					float[] in = new float[im.nChannels() * iw * ih];
-					for (int c = 0; c < im.nChannels(); c++) {
-						float[] src = im.channels[c];
-						int base = c * iw * ih;
-						for (int y = 0; y < ih; y++) {
-							int sy = PlanarImage.mirror(oy + y, h);
-							for (int x = 0; x < iw; x++) in[base + y * iw + x] = src[sy * w + PlanarImage.mirror(ox + x, w)];
-						}
-					}
+					float[] in = tileWithContext(im, ox, oy, iw, ih);
 					float[] p = new float[no * iw * ih];
 					for (int f = 0; f < flips; f++)
 						try (NDManager sub = manager.newSubManager()) {
@@ -125,6 +122,29 @@ public final class TiledPredictor {
 				}
 		}
 		return out;
+	}
+
+	/**
+	 * The tile's pixels with their context, channel after channel: read through ImgLib2's mirrored
+	 * extension (the edge pixel not repeated), so a tile may reach past any border.
+	 */
+	static float[] tileWithContext(PlanarImage im, int ox, int oy, int iw, int ih) {
+		float[] in = new float[im.nChannels() * iw * ih];
+		long[] min = {ox, oy}, max = {ox + iw - 1L, oy + ih - 1L};
+		// ImgLib2's single-boundary mirror fails on a side of one pixel; a side doubled mirrors alike
+		int sw = Math.max(2, im.width), sh = Math.max(2, im.height);
+		for (int c = 0; c < im.nChannels(); c++) {
+			float[] src = im.channels[c];
+			if (sw != im.width || sh != im.height) {
+				src = new float[sw * sh];
+				for (int y = 0; y < sh; y++)
+					for (int x = 0; x < sw; x++) src[y * sw + x] = im.channels[c][Math.min(y, im.height - 1) * im.width + Math.min(x, im.width - 1)];
+			}
+			var plane = Views.extendMirrorSingle(ArrayImgs.floats(src, sw, sh));
+			Cursor<FloatType> cur = Views.flatIterable(Views.interval(plane, min, max)).cursor();
+			for (int i = c * iw * ih; cur.hasNext(); i++) in[i] = cur.next().get();
+		}
+		return in;
 	}
 
 	static int roundUp(int v, int m) {

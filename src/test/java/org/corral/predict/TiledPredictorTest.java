@@ -67,4 +67,26 @@ class TiledPredictorTest {
 		assertEquals(0, PlanarImage.mirror(8, 5));
 		assertEquals(0, PlanarImage.mirror(-7, 1));
 	}
+
+	/** The tile read through ImgLib2's mirrored view equals the mirror rule, far past every border too. */
+	@Test
+	void tileContextIsTheMirroredImage() {
+		int[][] sizes = {{7, 5}, {1, 4}, {2, 1}, {1, 1}};
+		for (int[] wh : sizes) {
+			int w = wh[0], h = wh[1];
+			float[][] ch = new float[2][w * h];
+			for (int i = 0; i < w * h; i++) {
+				ch[0][i] = i;
+				ch[1][i] = 100 + 3 * i;
+			}
+			PlanarImage im = new PlanarImage(w, h, ch);
+			int ox = -13, oy = -9, iw = 40, ih = 24;
+			float[] t = TiledPredictor.tileWithContext(im, ox, oy, iw, ih);
+			for (int c = 0; c < 2; c++)
+				for (int y = 0; y < ih; y++)
+					for (int x = 0; x < iw; x++)
+						assertEquals(ch[c][PlanarImage.mirror(oy + y, h) * w + PlanarImage.mirror(ox + x, w)], t[(c * ih + y) * iw + x],
+							w + "x" + h + " channel " + c + " at " + x + "," + y);
+		}
+	}
 }
