@@ -264,13 +264,13 @@ public final class Main {
 
 	/** Learns, masks and scores the bundled demo images. */
 	private static int demoJob(String job, String[] argv, boolean help) {
-		if (help) return print("corral demo [--out DIR] [--steps N] [learn options]\n  learns from the boxes of test-images/ (default " + LearnSettings.QUICK_STEPS + " steps), masks them, scores them against\n  test-images/reference (default out: corral-demo-output)\n");
+		if (help) return print("corral demo [--out DIR] [--steps N] [learn options]\n  learns from the boxes of test-images/fields/ (3 fields of 512x512, 240 nuclei; default " + LearnSettings.QUICK_STEPS + " steps), masks them, scores them against\n  their reference masks (default out: corral-demo-output)\n");
 		Args a = new Args(job, argv, 1, Set.of("partial", "all-boxed"));
 		threads(a);
 		Path out = Path.of(a.str("out", "corral-demo-output"));
 		LearnSettings s = settings(a, LearnSettings.QUICK_STEPS);
 		a.checkAllUsed();
-		Demo.run(Path.of("test-images"), out, s, printer(cancelOnInterrupt()), System.out::println);
+		Demo.run(Path.of("test-images", "fields"), out, s, printer(cancelOnInterrupt()), System.out::println);
 		return 0;
 	}
 
