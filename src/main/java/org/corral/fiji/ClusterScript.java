@@ -5,7 +5,6 @@ import java.nio.file.Path;
 import java.util.ArrayList;
 import java.util.List;
 
-import org.corral.CorralException;
 import org.corral.cluster.SlurmScript;
 import org.scijava.ItemIO;
 import org.scijava.command.Command;
@@ -61,7 +60,7 @@ public class ClusterScript implements Command {
 
 	@Override
 	public void run() {
-		if (input == null || output == null || model == null) throw new CorralException("Choose the image folder, the output folder and the model file");
+		ProcessFolder.requireChosen(input, output, model);
 		List<String> job = new ArrayList<>(List.of(ProcessFolder.BOXES.equals(mode) ? "mask-boxes" : "mask-image", "--images", input.getAbsolutePath(),
 			"--model", model.getAbsolutePath(), "--out", output.getAbsolutePath()));
 		if (ProcessFolder.BOXES.equals(mode)) {

@@ -52,7 +52,7 @@ public class ProcessFolder implements Command {
 
 	@Override
 	public void run() {
-		if (input == null || output == null || model == null) throw new CorralException("Choose the image folder, the output folder and the model file");
+		requireChosen(input, output, model);
 		FolderRun.Report r;
 		Share share = Share.parse(part);
 		if (BOXES.equals(mode)) {
@@ -66,5 +66,10 @@ public class ProcessFolder implements Command {
 		}
 		summary = r.summary() + (r.failed().isEmpty() ? "" : ": " + r.failed());
 		ij.IJ.log("Corral: " + summary);
+	}
+
+	/** Both folder commands need all three paths chosen in the dialog (or given by the macro). */
+	static void requireChosen(File input, File output, File model) {
+		if (input == null || output == null || model == null) throw new CorralException("Choose the image folder, the output folder and the model file");
 	}
 }

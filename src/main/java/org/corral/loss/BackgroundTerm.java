@@ -19,11 +19,6 @@ public record BackgroundTerm() implements LossTerm {
 	}
 
 	@Override
-	public double weight() {
-		return 1;
-	}
-
-	@Override
 	public Set<String> needs() {
 		return Set.of(PLANE);
 	}

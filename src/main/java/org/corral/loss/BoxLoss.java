@@ -29,9 +29,9 @@ public final class BoxLoss {
 		List<LossTerm> terms = new ArrayList<>();
 		terms.add(new BackgroundTerm());
 		terms.add(new PairwiseTerm(weights.pairwise()));
-		if (outlines) terms.add(new OutlineTerm());
+		if (outlines) terms.add(CrossEntropyTerm.OUTLINES);
 		terms.add(new ConstraintTerm(weights));
-		if (instanceMap) terms.add(new InstanceMapTerm());
+		if (instanceMap) terms.add(CrossEntropyTerm.INSTANCE_MAP);
 		if (classes > 0) terms.add(new ClassTerm());
 		return terms;
 	}

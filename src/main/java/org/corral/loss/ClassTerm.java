@@ -19,11 +19,6 @@ public record ClassTerm() implements LossTerm {
 	}
 
 	@Override
-	public double weight() {
-		return 1;
-	}
-
-	@Override
 	public Set<String> needs() {
 		return Set.of(ONE_HOT, WEIGHT);
 	}

@@ -21,7 +21,8 @@ import org.corral.supervision.Constraint;
  * (arXiv:1904.04205, 2019). The fill lower bound is ours. Band and fill constraints are averaged per
  * kind, so the weights do not depend on how many boxes a crop holds. All rectangle sums come from one
  * integral image of p (a summed-area table, "Summed-area tables for texture mapping", SIGGRAPH 1984),
- * so their cost does not grow with box size. Reports {@value #MET}: the fraction of constraints met.
+ * so their cost does not grow with box size. Reports {@value #MET}: the fraction of constraints met. Its weight
+ * in the total is 1: the band and fill weights are inside, per constraint.
  */
 public record ConstraintTerm(LossWeights weights) implements LossTerm {
 	public static final String NAME = "constraints", MET = "met";
@@ -29,12 +30,6 @@ public record ConstraintTerm(LossWeights weights) implements LossTerm {
 	@Override
 	public String name() {
 		return NAME;
-	}
-
-	/** The band and fill weights are inside, per constraint. */
-	@Override
-	public double weight() {
-		return 1;
 	}
 
 	@Override

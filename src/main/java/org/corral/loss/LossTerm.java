@@ -14,8 +14,10 @@ public interface LossTerm {
 	/** Its name in reports and in the model header (lower case, one word). */
 	String name();
 
-	/** Its weight in the total. */
-	double weight();
+	/** Its weight in the total (1 unless the term is given one). */
+	default double weight() {
+		return 1;
+	}
 
 	/** The crop planes it reads ({@link CropTargets}); the crop sampler must provide them. */
 	Set<String> needs();

@@ -9,8 +9,7 @@ import org.corral.image.PlanarImage;
 import org.corral.loss.BackgroundTerm;
 import org.corral.loss.ClassTerm;
 import org.corral.loss.CropTargets;
-import org.corral.loss.InstanceMapTerm;
-import org.corral.loss.OutlineTerm;
+import org.corral.loss.CrossEntropyTerm;
 import org.corral.loss.PairwiseTerm;
 import org.corral.supervision.Constraint;
 import org.corral.supervision.Supervision;
@@ -209,10 +208,10 @@ final class CropSampler {
 			.optPlane(BackgroundTerm.PLANE, bg, 1, s, s)
 			.optPlane(PairwiseTerm.HORIZONTAL, ph, 1, s, s - 1)
 			.optPlane(PairwiseTerm.VERTICAL, pv, 1, s - 1, s)
-			.optPlane(InstanceMapTerm.TARGET, cen, 1, s, s)
-			.optPlane(InstanceMapTerm.WEIGHT, cw, 1, s, s)
-			.optPlane(OutlineTerm.TARGET, ex, 1, s, s)
-			.optPlane(OutlineTerm.WEIGHT, exw, 1, s, s);
+			.optPlane(CrossEntropyTerm.INSTANCE_MAP.target(), cen, 1, s, s)
+			.optPlane(CrossEntropyTerm.INSTANCE_MAP.known(), cw, 1, s, s)
+			.optPlane(CrossEntropyTerm.OUTLINES.target(), ex, 1, s, s)
+			.optPlane(CrossEntropyTerm.OUTLINES.known(), exw, 1, s, s);
 		if (cls != null) { // the class of each pixel as one-hot planes, and where it is known
 			float[] oneHot = new float[nClasses * s * s], known = new float[s * s];
 			for (int q = 0; q < cls.length; q++)

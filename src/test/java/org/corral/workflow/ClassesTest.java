@@ -15,6 +15,7 @@ import java.util.Locale;
 import java.util.Map;
 import java.util.SplittableRandom;
 
+import org.corral.SyntheticObjects;
 import org.corral.io.ImageFiles;
 import org.corral.predict.ModelRunner;
 import org.corral.train.LearnSettings;
@@ -54,12 +55,9 @@ class ClassesTest {
 				if (!round && rnd.nextBoolean()) { double t = rx; rx = ry; ry = t; } // lying or standing
 				double cx = rnd.nextDouble(rx + 1, W - rx - 1), cy = rnd.nextDouble(ry + 1, H - ry - 1);
 				int x0 = (int) Math.floor(cx - rx), x1 = (int) Math.ceil(cx + rx), y0 = (int) Math.floor(cy - ry), y1 = (int) Math.ceil(cy + ry);
-				boolean free = true;
-				for (int y = Math.max(0, y0 - 2); y < Math.min(H, y1 + 2) && free; y++)
-					for (int x = Math.max(0, x0 - 2); x < Math.min(W, x1 + 2); x++) if (lab[y * W + x] != 0) { free = false; break; }
-				if (!free) continue;
+				if (!SyntheticObjects.free(lab, W, H, x0, y0, x1, y1, 2)) continue;
 				int id = cls.size() + 1;
-				int bx0 = W, by0 = H, bx1 = -1, by1 = -1;
+				SyntheticObjects.Bounds bounds = new SyntheticObjects.Bounds();
 				float level = (float) rnd.nextDouble(0.6, 0.9);
 				for (int y = y0; y <= y1; y++)
 					for (int x = x0; x <= x1; x++) {
@@ -67,13 +65,10 @@ class ClassesTest {
 						if (dx * dx + dy * dy > 1) continue;
 						lab[y * W + x] = id;
 						img[y * W + x] = level;
-						bx0 = Math.min(bx0, x);
-						by0 = Math.min(by0, y);
-						bx1 = Math.max(bx1, x);
-						by1 = Math.max(by1, y);
+						bounds.add(x, y);
 					}
 				cls.put(id, round ? "spore" : "hypha");
-				rows.add(String.format(Locale.ROOT, "%s,%d,%d,%d,%d,%s%n", name, bx0, by0, bx1 - bx0 + 1, by1 - by0 + 1, cls.get(id)));
+				rows.add(name + "," + bounds.csv() + "," + cls.get(id) + "\n");
 			}
 			for (int i = 0; i < W * H; i++) if (img[i] == 0) img[i] = 0.1f; // background
 			InventedField.save(set, name, W, H, img, lab, 0.04, rnd);

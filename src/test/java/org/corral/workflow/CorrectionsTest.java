@@ -11,6 +11,7 @@ import java.util.List;
 import java.util.Locale;
 import java.util.SplittableRandom;
 
+import org.corral.SyntheticObjects;
 import org.corral.io.ImageFiles;
 import org.corral.train.LearnSettings;
 import org.junit.jupiter.api.Test;
@@ -46,13 +47,10 @@ class CorrectionsTest {
 				double rx = rnd.nextDouble(8, 13), ry = rnd.nextDouble(8, 13);
 				double cx = rnd.nextDouble(rx + 1, W - rx - 1), cy = rnd.nextDouble(ry + 1, H - ry - 1);
 				int x0 = (int) Math.floor(cx - rx), x1 = (int) Math.ceil(cx + rx), y0 = (int) Math.floor(cy - ry), y1 = (int) Math.ceil(cy + ry);
-				boolean free = true;
-				for (int y = Math.max(0, y0 - 2); y < Math.min(H, y1 + 2) && free; y++)
-					for (int x = Math.max(0, x0 - 2); x < Math.min(W, x1 + 2); x++) if (lab[y * W + x] != 0) { free = false; break; }
-				if (!free) continue;
+				if (!SyntheticObjects.free(lab, W, H, x0, y0, x1, y1, 2)) continue;
 				int id = boxes.size() + 1;
 				double nx = cx + rnd.nextDouble(-0.2, 0.2) * rx, ny = cy + rnd.nextDouble(-0.2, 0.2) * ry;
-				int bx0 = W, by0 = H, bx1 = -1, by1 = -1;
+				SyntheticObjects.Bounds bounds = new SyntheticObjects.Bounds();
 				for (int y = y0; y <= y1; y++)
 					for (int x = x0; x <= x1; x++) {
 						double dx = (x + 0.5 - cx) / rx, dy = (y + 0.5 - cy) / ry;
@@ -60,12 +58,9 @@ class CorrectionsTest {
 						lab[y * W + x] = id;
 						double ex = (x + 0.5 - nx) / (0.45 * rx), ey = (y + 0.5 - ny) / (0.45 * ry);
 						img[y * W + x] = ex * ex + ey * ey <= 1 ? 0.9f : CYTOPLASM; // nucleus, cytoplasm
-						bx0 = Math.min(bx0, x);
-						by0 = Math.min(by0, y);
-						bx1 = Math.max(bx1, x);
-						by1 = Math.max(by1, y);
+						bounds.add(x, y);
 					}
-				boxes.add(new int[] {bx0, by0, bx1 - bx0 + 1, by1 - by0 + 1});
+				boxes.add(bounds.box());
 			}
 			float[] blurred = new float[W * H];
 			for (int y = 0; y < H; y++)

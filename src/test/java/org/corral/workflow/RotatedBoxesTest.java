@@ -12,6 +12,7 @@ import java.util.Locale;
 import java.util.Map;
 import java.util.SplittableRandom;
 
+import org.corral.SyntheticObjects;
 import org.corral.boxes.Box;
 import org.corral.boxes.BoxFiles;
 import org.corral.boxes.RoiBoxes;
@@ -62,7 +63,7 @@ class RotatedBoxesTest {
 					}
 				if (!free) continue;
 				id++;
-				int bx0 = W, by0 = H, bx1 = -1, by1 = -1;
+				SyntheticObjects.Bounds bounds = new SyntheticObjects.Bounds();
 				float level = (float) rnd.nextDouble(0.6, 0.9);
 				for (int y = r.y(); y < r.y1(); y++)
 					for (int x = r.x(); x < r.x1(); x++) {
@@ -71,12 +72,9 @@ class RotatedBoxesTest {
 						if (du * du + dv * dv > 1) continue;
 						lab[y * W + x] = id;
 						img[y * W + x] = level;
-						bx0 = Math.min(bx0, x);
-						by0 = Math.min(by0, y);
-						bx1 = Math.max(bx1, x);
-						by1 = Math.max(by1, y);
+						bounds.add(x, y);
 					}
-				upright.append(String.format(Locale.ROOT, "%s,%d,%d,%d,%d%n", name, bx0, by0, bx1 - bx0 + 1, by1 - by0 + 1));
+				upright.append(name + "," + bounds.csv() + "\n");
 				rotated.append(String.format(Locale.ROOT, "%s,,,,,%.2f,%.2f,%.2f,%.2f,%.2f%n", name, f.cx(), f.cy(), len, br, a));
 			}
 			for (int i = 0; i < W * H; i++) if (img[i] == 0) img[i] = 0.1f; // background
