@@ -82,6 +82,7 @@ public final class Learner {
 	/** What the report and the header need of the run so far. */
 	private static final class Run {
 		int total;
+		LearningRateSchedule rate;
 		boolean shortened;
 		long start, warm;
 		Progress.Report last;
@@ -167,7 +168,8 @@ public final class Learner {
 
 	/** Adam with the warm-up and cosine schedule over the run's (possibly shortened) length. */
 	private DefaultTrainingConfig trainingConfig(Run run) {
-		Tracker lr = step -> (float) (s.learningRate * lrFactor(step, run.total));
+		run.rate = new LearningRateSchedule(s.learningRate, run.total);
+		Tracker lr = run.rate;
 		// DJL's config requires a loss; the trainer never calls it, BoxLoss is computed by hand in step()
 		return new DefaultTrainingConfig(Loss.l2Loss())
 			.optOptimizer(Optimizer.adam().optLearningRateTracker(lr).build())
@@ -218,6 +220,7 @@ public final class Learner {
 			int fit = (int) (step + (s.minutes * 60 - elapsed) / sps);
 			if (fit < run.total) {
 				run.total = Math.max(step + 1, fit);
+				run.rate.setTotal(run.total);
 				run.shortened = true;
 			}
 		}
@@ -373,17 +376,6 @@ public final class Learner {
 	double tAt(int step, int total) {
 		double f = Math.min(1, step / (s.tRamp * total));
 		return s.tStart * Math.pow(s.tMax / s.tStart, f);
-	}
-
-	/**
-	 * Short linear warm-up (common practice), then cosine decay to 5 % (the cosine schedule of "SGDR:
-	 * Stochastic Gradient Descent with Warm Restarts", ICLR 2017, without restarts).
-	 */
-	static double lrFactor(int step, int total) {
-		int warm = Math.max(1, Math.min(20, total / 10));
-		if (step < warm) return (step + 1.0) / warm;
-		double f = Math.min(1, (step - warm) / (double) Math.max(1, total - warm));
-		return 0.05 + 0.95 * 0.5 * (1 + Math.cos(Math.PI * f));
 	}
 
 	static double median(List<Double> v) {

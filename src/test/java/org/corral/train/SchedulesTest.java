@@ -24,13 +24,28 @@ class SchedulesTest {
 
 	@Test
 	void learningRateWarmsUpThenFollowsACosineDownToFivePercent() {
+		double rate = 1e-3;
 		int total = 400, warm = 20;
-		assertTrue(Learner.lrFactor(0, total) < Learner.lrFactor(10, total));
-		assertEquals(1.0, Learner.lrFactor(warm, total), 1e-9, "full rate when the warm-up ends");
-		assertEquals(0.05, Learner.lrFactor(total, total), 1e-9);
-		assertEquals(0.05 + 0.95 * 0.5, Learner.lrFactor(warm + (total - warm) / 2, total), 1e-9, "half way down the cosine");
-		for (int k = warm + 1; k <= total; k++) assertTrue(Learner.lrFactor(k, total) <= Learner.lrFactor(k - 1, total));
+		LearningRateSchedule lr = new LearningRateSchedule(rate, total);
+		assertEquals(rate / warm, lr.getNewValue(0), 1e-9, "the warm-up starts from a twentieth");
+		for (int k = 1; k <= warm; k++) assertTrue(lr.getNewValue(k) > lr.getNewValue(k - 1), "rising through the warm-up at " + k);
+		assertEquals(rate, lr.getNewValue(warm), 1e-9, "full rate when the warm-up ends");
+		assertEquals(rate * (0.05 + 0.95 * 0.5), lr.getNewValue(warm + (total - warm) / 2), 1e-9, "half way down the cosine");
+		assertEquals(0.05 * rate, lr.getNewValue(total), 1e-9, "5 % at the last step");
+		for (int k = warm + 1; k <= total; k++) assertTrue(lr.getNewValue(k) <= lr.getNewValue(k - 1));
 		// short runs warm up over a tenth of the run
-		assertEquals(1.0, Learner.lrFactor(6, 60), 1e-9);
+		assertEquals(rate, new LearningRateSchedule(rate, 60).getNewValue(6), 1e-9);
+	}
+
+	/** Shortened by the time budget, the schedule reaches its floor at the new last step. */
+	@Test
+	void aShortenedRunEndsAtTheFloor() {
+		double rate = 1e-3;
+		LearningRateSchedule lr = new LearningRateSchedule(rate, 400);
+		float before = lr.getNewValue(150);
+		lr.setTotal(200);
+		assertTrue(lr.getNewValue(150) < before, "further down the cosine at the same step");
+		assertEquals(0.05 * rate, lr.getNewValue(200), 1e-9);
+		assertEquals(rate * (0.05 + 0.95 * 0.5), lr.getNewValue(20 + 90), 1e-9, "the middle of the shortened cosine");
 	}
 }
