@@ -114,7 +114,38 @@ public final class ModelRunner implements AutoCloseable {
 	 * As above, normalised with the given raw bounds ({@link Normalise#bounds}; null: the image's own
 	 * percentiles): a band of rows of a larger image is masked as the whole image would be.
 	 */
-	public synchronized float[][] maps(PlanarImage raw, float[][] bounds, double scale, BooleanSupplier cancelled, int flips) {
+	public float[][] maps(PlanarImage raw, float[][] bounds, double scale, BooleanSupplier cancelled, int flips) {
+		return maps(raw, bounds, scale, null, cancelled, flips);
+	}
+
+	/**
+	 * The maps that box masks need, computed only on the tiles that hold the boxes (with a margin of
+	 * {@value #BOX_REGION_PAD} pixels for the resampling): equal to {@link #maps} inside
+	 * every box, 0 far from all boxes. A few boxes on a large image cost a few tiles.
+	 */
+	public float[][] boxMaps(PlanarImage raw, List<Box> boxes, double scale, BooleanSupplier cancelled, int flips) {
+		return maps(raw, null, scale, boxes, cancelled, flips);
+	}
+
+	/** The boxes' rectangles in the network's image of {@code sw} x {@code sh} pixels, padded. */
+	private static List<int[]> regions(List<Box> boxes, PlanarImage raw, int sw, int sh) {
+		double sx = (double) sw / raw.width, sy = (double) sh / raw.height;
+		List<int[]> regions = new java.util.ArrayList<>(boxes.size());
+		for (Box b : boxes)
+			regions.add(new int[] {(int) Math.floor((b.x() - BOX_REGION_PAD) * sx) - BOX_REGION_PAD, (int) Math.floor((b.y() - BOX_REGION_PAD) * sy) - BOX_REGION_PAD,
+				(int) Math.ceil((b.x() + b.width() + BOX_REGION_PAD) * sx) + BOX_REGION_PAD, (int) Math.ceil((b.y() + b.height() + BOX_REGION_PAD) * sy) + BOX_REGION_PAD});
+		return regions;
+	}
+
+	/** Pixels around a box, in the image and again in the network's image, that {@link #boxMaps} also computes: bilinear sampling reads one beyond. */
+	static final int BOX_REGION_PAD = 2;
+
+	/** Tiles the last prediction computed. */
+	public int tilesComputed() {
+		return predictor == null ? 0 : predictor.tilesComputed();
+	}
+
+	private synchronized float[][] maps(PlanarImage raw, float[][] bounds, double scale, List<Box> boxes, BooleanSupplier cancelled, int flips) {
 		if (predictor == null) predictor = new TiledPredictor(net, manager);
 		predictor.optFlips(flips);
 		if (raw.nChannels() != header.inChannels)
@@ -122,9 +153,9 @@ public final class ModelRunner implements AutoCloseable {
 		int no = Math.max(1, header.outputs);
 		if (constant(raw)) return new float[no][raw.width * raw.height]; // no contrast, no objects
 		PlanarImage norm = bounds != null ? Normalise.with(raw, bounds) : Normalise.percentiles(raw, header.normLow, header.normHigh);
-		if (scale == 1) return finite(predictor.predictMaps(norm, cancelled));
+		if (scale == 1) return finite(predictor.predictMaps(norm, boxes == null ? null : regions(boxes, raw, raw.width, raw.height), cancelled));
 		int sw = Math.max(1, (int) Math.round(raw.width * scale)), sh = Math.max(1, (int) Math.round(raw.height * scale));
-		float[][] p = finite(predictor.predictMaps(Resample.bilinear(norm, sw, sh), cancelled));
+		float[][] p = finite(predictor.predictMaps(Resample.bilinear(norm, sw, sh), boxes == null ? null : regions(boxes, raw, sw, sh), cancelled));
 		for (int o = 0; o < p.length; o++) p[o] = Resample.bilinear(p[o], sw, sh, raw.width, raw.height);
 		return p;
 	}

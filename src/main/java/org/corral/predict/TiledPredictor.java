@@ -25,7 +25,7 @@ public final class TiledPredictor {
 	private final UNet net;
 	private final NDManager manager;
 	private final int tile, overlap;
-	private int flips = 1;
+	private int flips = 1, tilesComputed;
 	/** The network with batch normalisation folded in, made at the first prediction (parameters are final by then). */
 	private FoldedNetwork folded;
 
@@ -82,10 +82,20 @@ public final class TiledPredictor {
 
 	/** Every output map of the network (object probability, and the instance map when it has one), in [0, 1]. */
 	public float[][] predictMaps(PlanarImage im, BooleanSupplier cancelled) {
+		return predictMaps(im, null, cancelled);
+	}
+
+	/**
+	 * As above, computing only the tiles whose kept part meets one of {@code regions} ({x0, y0, x1,
+	 * y1}, exclusive ends, in this image's pixels; null: every tile); the maps are 0 elsewhere. The
+	 * tiles are laid out as for the whole image, so what is computed equals the whole-image maps.
+	 */
+	public float[][] predictMaps(PlanarImage im, java.util.List<int[]> regions, BooleanSupplier cancelled) {
 		if (im.nChannels() != net.inChannels())
 			throw new CorralException("The model expects " + net.inChannels() + " channel(s), the image has " + im.nChannels());
 		int w = im.width, h = im.height;
 		int no = net.outputs();
+		tilesComputed = 0;
 		float[][] out = new float[no][w * h];
 		int m = net.multiple();
 		if (folded == null) folded = new FoldedNetwork(net, manager);
@@ -97,6 +107,8 @@ public final class TiledPredictor {
 				for (int tx = 0; tx < w; tx += tw) {
 					if (cancelled != null && cancelled.getAsBoolean()) throw new java.util.concurrent.CancellationException("prediction cancelled");
 					int cw = Math.min(tw, w - tx), ch = Math.min(th, h - ty);
+					if (regions != null && !meets(regions, tx, ty, tx + cw, ty + ch)) continue;
+					tilesComputed++;
 					// tile origins on the pooling grid of the whole image, so every tile pools alike
 					int ox = Math.floorDiv(tx - overlap, m) * m, oy = Math.floorDiv(ty - overlap, m) * m;
 					int iw = roundUp(tx + cw + overlap - ox, m), ih = roundUp(ty + ch + overlap - oy, m);
@@ -145,6 +157,17 @@ public final class TiledPredictor {
 			for (int i = c * iw * ih; cur.hasNext(); i++) in[i] = cur.next().get();
 		}
 		return in;
+	}
+
+	private static boolean meets(java.util.List<int[]> regions, int x0, int y0, int x1, int y1) {
+		for (int[] r : regions)
+			if (r[0] < x1 && x0 < r[2] && r[1] < y1 && y0 < r[3]) return true;
+		return false;
+	}
+
+	/** Tiles the last prediction computed (each with all its flips). */
+	public int tilesComputed() {
+		return tilesComputed;
 	}
 
 	static int roundUp(int v, int m) {

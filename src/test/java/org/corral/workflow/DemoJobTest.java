@@ -27,7 +27,7 @@ class DemoJobTest {
 	@Test
 	void demoWritesEveryOutputAndBeatsTheBox() throws Exception {
 		assertEquals(0, Main.run(new String[] {"demo", "--out", out.toString(), "--steps", "120", "--minutes", "0"}));
-		Map<String, List<Box>> boxes = BoxFiles.readCsv(ReferenceData.demo().resolve("boxes.csv"));
+		Map<String, List<Box>> boxes = BoxFiles.readCsv(fields().resolve("boxes.csv"));
 		for (Map.Entry<String, List<Box>> e : boxes.entrySet()) {
 			String base = e.getKey().replace(".tif", "");
 			Path masks = out.resolve("masks");
@@ -57,12 +57,17 @@ class DemoJobTest {
 		}
 	}
 
+	/** What {@code corral demo} runs on: the realistic fields. */
+	static Path fields() {
+		return ReferenceData.demo().resolve("fields");
+	}
+
 	static double boxDice(Map<String, List<Box>> boxes) {
 		org.corral.score.Scores.Tally t = new org.corral.score.Scores.Tally();
 		for (Map.Entry<String, List<Box>> e : boxes.entrySet()) {
-			var im = ImageFiles.read(ReferenceData.demo().resolve("images").resolve(e.getKey()));
+			var im = ImageFiles.read(fields().resolve("images").resolve(e.getKey()));
 			t.add(org.corral.score.Scores.compare(Baselines.boxItself(im, e.getValue()),
-				ImageFiles.readLabels(ReferenceData.demo().resolve("reference").resolve(e.getKey()), null)));
+				ImageFiles.readLabels(fields().resolve("reference").resolve(e.getKey()), null)));
 		}
 		return t.objectDice();
 	}
