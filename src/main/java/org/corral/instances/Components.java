@@ -3,7 +3,6 @@ package org.corral.instances;
 import ij.process.ByteProcessor;
 import ij.process.FloodFiller;
 
-
 /** Connected components and hole filling on binary masks of a rectangle (pure Java). */
 public final class Components {
 	private Components() {}

@@ -14,7 +14,6 @@ import ai.djl.training.Trainer;
 import ai.djl.training.initializer.XavierInitializer;
 import ai.djl.training.loss.Loss;
 import ai.djl.training.optimizer.Optimizer;
-import ai.djl.training.tracker.Tracker;
 
 import java.time.Instant;
 import java.util.ArrayList;
@@ -169,10 +168,9 @@ public final class Learner {
 	/** Adam with the warm-up and cosine schedule over the run's (possibly shortened) length. */
 	private DefaultTrainingConfig trainingConfig(Run run) {
 		run.rate = new LearningRateSchedule(s.learningRate, run.total);
-		Tracker lr = run.rate;
 		// DJL's config requires a loss; the trainer never calls it, BoxLoss is computed by hand in step()
 		return new DefaultTrainingConfig(Loss.l2Loss())
-			.optOptimizer(Optimizer.adam().optLearningRateTracker(lr).build())
+			.optOptimizer(Optimizer.adam().optLearningRateTracker(run.rate).build())
 			.optInitializer(new XavierInitializer(XavierInitializer.RandomType.GAUSSIAN, XavierInitializer.FactorType.IN, 2), Parameter.Type.WEIGHT)
 			.optDevices(new Device[] {Device.cpu()});
 	}

@@ -92,7 +92,7 @@ public final class SpeedBenchmark {
 		try (model; NDManager m = NDManager.newBaseManager()) {
 			long flops = model.net().flopsPerPixel();
 			Stage read = new Stage("read"), norm = new Stage("normalise"), net = new Stage("network, 1 pass, tiles of " + TiledPredictor.defaultTile(model.net())), flips = new Stage("network, 4 flips (box masks)"),
-				inst = new Stage("instance stage (whole image)"), edm = new Stage("  of which seeds"), shed = new Stage("  of which flooding"),
+				inst = new Stage("instance stage (whole image)"), seedStage = new Stage("  of which seeds"), floodStage = new Stage("  of which flooding"),
 				outl = new Stage("outlines"), write = new Stage("writing"), fit = new Stage("box masks, fitted");
 			TiledPredictor one = new TiledPredictor(model.net(), m), four = new TiledPredictor(model.net(), m).optFlips(4);
 			TiledPredictor big = new TiledPredictor(model.net(), m, 640, 32);
@@ -141,10 +141,10 @@ public final class SpeedBenchmark {
 					}
 					t = System.nanoTime();
 					ImageMasks.Seeds seeds = ImageMasks.seeds(mask, bin, model.instanceMap(maps), raw.width, raw.height, ImageMasks.PROMINENCE * model.header().objectSize);
-					edm.add(t, mp);
+					seedStage.add(t, mp);
 					t = System.nanoTime();
 					SeededWatershed.flood(seeds.landscape(), mask, seeds.labels(), raw.width, raw.height);
-					shed.add(t, mp);
+					floodStage.add(t, mp);
 					t = System.nanoTime();
 					var rois = RoiSets.outlines(res.labels(), raw.width, raw.height, res.count(), null);
 					outl.add(t, mp);
@@ -156,7 +156,7 @@ public final class SpeedBenchmark {
 				}
 				out.append(String.format(Locale.ROOT, "%d image(s), %.2f MP, network %,d FLOP per pixel%n", files.size(), read.megapixels, flops));
 				out.append(String.format(Locale.ROOT, "%-34s %9s %9s%n", "stage", "seconds", "MP/s"));
-				for (Stage s : List.of(read, norm, net, bigTiles, flips, fit, inst, edm, shed, outl, write))
+				for (Stage s : List.of(read, norm, net, bigTiles, flips, fit, inst, seedStage, floodStage, outl, write))
 					out.append(String.format(Locale.ROOT, "%-34s %9.3f %9.3f%n", s.name, s.seconds, s.megapixels / s.seconds));
 				double gf = flops * net.megapixels * 1e6 / net.seconds / 1e9;
 				out.append(String.format(Locale.ROOT, "network: %.1f GFLOP/s = %.0f %% of the matrix product (image pixels only; tile context not counted)%n", gf, 100 * gf / gemm));
