@@ -201,6 +201,7 @@ public final class ModelRunner implements AutoCloseable {
 
 	@Override
 	public void close() {
+		if (predictor != null) predictor.close();
 		manager.close();
 	}
 }

@@ -1,8 +1,6 @@
 package org.corral.predict;
 
-import ai.djl.ndarray.NDArray;
 import ai.djl.ndarray.NDManager;
-import ai.djl.ndarray.types.Shape;
 
 import java.util.function.BooleanSupplier;
 
@@ -21,13 +19,38 @@ import org.corral.net.UNet;
  * so seams do not show and memory depends on the tile size, not on the image size. Tiles are
  * at most {@code tile} pixels on a side.
  */
-public final class TiledPredictor {
+public final class TiledPredictor implements AutoCloseable {
 	private final UNet net;
 	private final NDManager manager;
 	private final int tile, overlap;
 	private int flips = 1, tilesComputed;
 	/** The network with batch normalisation folded in, made at the first prediction (parameters are final by then). */
 	private FoldedNetwork folded;
+	/** What runs it: ONNX Runtime, or DJL when that cannot load here ({@link #network()}). */
+	private TileNetwork network;
+	/** System property naming the default engine for inference: "onnx" (default) or "djl". */
+	public static final String ENGINE_PROPERTY = "corral.inference";
+	private static volatile boolean fallbackReported;
+	private Engine engine = defaultEngine();
+
+	/** What runs the network: ONNX Runtime (fast on CPUs) or DJL's PyTorch binding (the learning engine). */
+	public enum Engine {
+		ONNX, DJL
+	}
+
+	static Engine defaultEngine() {
+		String e = System.getProperty(ENGINE_PROPERTY, "onnx");
+		if (e.equals("onnx")) return Engine.ONNX;
+		if (e.equals("djl")) return Engine.DJL;
+		throw new CorralException(ENGINE_PROPERTY + " must be onnx or djl, got '" + e + "'");
+	}
+
+	/** The engine for the network; set before the first prediction. */
+	public TiledPredictor optEngine(Engine e) {
+		if (network != null) throw new IllegalStateException("the network already runs");
+		this.engine = e;
+		return this;
+	}
 
 	public TiledPredictor(UNet net, NDManager manager, int tile, int overlap) {
 		if (tile < 16 || overlap < 0) throw new IllegalArgumentException("tile must be >= 16 and overlap >= 0");
@@ -98,42 +121,78 @@ public final class TiledPredictor {
 		tilesComputed = 0;
 		float[][] out = new float[no][w * h];
 		int m = net.multiple();
-		if (folded == null) folded = new FoldedNetwork(net, manager);
+		TileNetwork network = network();
+		int c = im.nChannels();
 		// as few tiles as the size limit allows, all of about the same size: no tile is mostly padding
 		int nx = (w + tile - 1) / tile, ny = (h + tile - 1) / tile;
 		int tw = (w + nx - 1) / nx, th = (h + ny - 1) / ny;
-		{ // the folded arrays do not require gradients, so no graph is recorded
-			for (int ty = 0; ty < h; ty += th)
-				for (int tx = 0; tx < w; tx += tw) {
-					if (cancelled != null && cancelled.getAsBoolean()) throw new java.util.concurrent.CancellationException("prediction cancelled");
-					int cw = Math.min(tw, w - tx), ch = Math.min(th, h - ty);
-					if (regions != null && !meets(regions, tx, ty, tx + cw, ty + ch)) continue;
-					tilesComputed++;
-					// tile origins on the pooling grid of the whole image, so every tile pools alike
-					int ox = Math.floorDiv(tx - overlap, m) * m, oy = Math.floorDiv(ty - overlap, m) * m;
-					int iw = roundUp(tx + cw + overlap - ox, m), ih = roundUp(ty + ch + overlap - oy, m);
-					float[] in = tileWithContext(im, ox, oy, iw, ih);
-					float[] p = new float[no * iw * ih];
-					for (int f = 0; f < flips; f++)
-						try (NDManager sub = manager.newSubManager()) {
-							// test-time flips: predict the mirrored tile, mirror back, average
-							int[] axes = f == 0 ? new int[0] : f == 1 ? new int[] {3} : f == 2 ? new int[] {2} : new int[] {2, 3};
-							NDArray x = sub.create(in, new Shape(1, im.nChannels(), ih, iw));
-							if (axes.length > 0) x = x.flip(axes);
-							NDArray logits = folded.forward(x);
-							if (axes.length > 0) logits = logits.flip(axes);
-							float[] pf = ai.djl.nn.Activation.sigmoid(logits).toFloatArray();
-							for (int i = 0; i < p.length; i++) p[i] += pf[i] / flips;
-						}
-					{
-						int dx = tx - ox, dy = ty - oy;
-						for (int o = 0; o < no; o++)
-							for (int y = 0; y < ch; y++)
-								System.arraycopy(p, o * iw * ih + (y + dy) * iw + dx, out[o], (ty + y) * w + tx, cw);
+		for (int ty = 0; ty < h; ty += th)
+			for (int tx = 0; tx < w; tx += tw) {
+				if (cancelled != null && cancelled.getAsBoolean()) throw new java.util.concurrent.CancellationException("prediction cancelled");
+				int cw = Math.min(tw, w - tx), ch = Math.min(th, h - ty);
+				if (regions != null && !meets(regions, tx, ty, tx + cw, ty + ch)) continue;
+				tilesComputed++;
+				// tile origins on the pooling grid of the whole image, so every tile pools alike
+				int ox = Math.floorDiv(tx - overlap, m) * m, oy = Math.floorDiv(ty - overlap, m) * m;
+				int iw = roundUp(tx + cw + overlap - ox, m), ih = roundUp(ty + ch + overlap - oy, m);
+				float[] in = tileWithContext(im, ox, oy, iw, ih);
+				// test-time flips: the mirrored tiles go through the network as one batch, are mirrored back and averaged
+				int plane = iw * ih;
+				float[] batch = new float[flips * c * plane];
+				for (int f = 0; f < flips; f++)
+					for (int k = 0; k < c; k++) mirror(in, k * plane, batch, (f * c + k) * plane, iw, ih, f);
+				float[] pf = network.probabilities(batch, flips, ih, iw);
+				float[] p = new float[no * plane];
+				for (int f = 0; f < flips; f++)
+					for (int o = 0; o < no; o++) {
+						float[] back = new float[plane];
+						mirror(pf, (f * no + o) * plane, back, 0, iw, ih, f);
+						for (int i = 0; i < plane; i++) p[o * plane + i] += back[i] / flips;
 					}
-				}
-		}
+				int dx = tx - ox, dy = ty - oy;
+				for (int o = 0; o < no; o++)
+					for (int y = 0; y < ch; y++)
+						System.arraycopy(p, o * plane + (y + dy) * iw + dx, out[o], (ty + y) * w + tx, cw);
+			}
 		return out;
+	}
+
+	/**
+	 * The network that runs the tiles: ONNX Runtime unless {@link #optEngine} or the system property
+	 * {@value #ENGINE_PROPERTY} says DJL, or the runtime cannot load on this machine (then DJL,
+	 * reported once on stderr).
+	 */
+	public TileNetwork network() {
+		if (network != null) return network;
+		if (folded == null) folded = new FoldedNetwork(net, manager);
+		if (engine == Engine.ONNX) {
+			try {
+				network = OnnxNetwork.of(folded, Integer.getInteger("ai.djl.pytorch.num_threads", 0));
+			} catch (ai.onnxruntime.OrtException | LinkageError e) {
+				if (!fallbackReported) System.err.println("corral: ONNX Runtime is not available here (" + e.getMessage() + "); the network runs in DJL, about 5x slower");
+				fallbackReported = true;
+			}
+		}
+		if (network == null) network = folded;
+		return network;
+	}
+
+	/** Copies one plane of {@code w x h}, mirrored as flip {@code f} says: 0 none, 1 left-right, 2 top-bottom, 3 both (its own inverse). */
+	static void mirror(float[] src, int from, float[] dst, int to, int w, int h, int f) {
+		boolean lr = f == 1 || f == 3, tb = f >= 2;
+		for (int y = 0; y < h; y++) {
+			int sy = tb ? h - 1 - y : y, s = from + sy * w, d = to + y * w;
+			if (!lr) System.arraycopy(src, s, dst, d, w);
+			else for (int x = 0; x < w; x++) dst[d + x] = src[s + w - 1 - x];
+		}
+	}
+
+	@Override
+	public void close() {
+		if (network != null && network != folded) network.close();
+		if (folded != null) folded.close();
+		network = null;
+		folded = null;
 	}
 
 	/**

@@ -94,17 +94,19 @@ public final class SpeedBenchmark {
 			Stage read = new Stage("read"), norm = new Stage("normalise"), net = new Stage("network, 1 pass, tiles of " + TiledPredictor.defaultTile(model.net())), flips = new Stage("network, 4 flips (box masks)"),
 				inst = new Stage("instance stage (whole image)"), seedStage = new Stage("  of which seeds"), floodStage = new Stage("  of which flooding"),
 				outl = new Stage("outlines"), write = new Stage("writing"), fit = new Stage("box masks, fitted");
-			TiledPredictor one = new TiledPredictor(model.net(), m), four = new TiledPredictor(model.net(), m).optFlips(4);
-			TiledPredictor big = new TiledPredictor(model.net(), m, 640, 32);
-			Stage bigTiles = new Stage("network, 1 pass, tiles of 640");
+			Stage bigTiles = new Stage("network, 1 pass, tiles of 640"), djlStage = new Stage("network, 1 pass, in DJL");
 			Path tmp = Files.createTempDirectory("corral-speed");
-			try {
+			try (TiledPredictor one = new TiledPredictor(model.net(), m); TiledPredictor four = new TiledPredictor(model.net(), m).optFlips(4);
+				TiledPredictor big = new TiledPredictor(model.net(), m, 640, 32);
+				TiledPredictor djl = new TiledPredictor(model.net(), m).optEngine(TiledPredictor.Engine.DJL)) {
+				out.append("network engine: " + one.network().engine() + " (compared: " + djl.network().engine() + ")\n");
 				// the engine prepares its kernels for each new tile shape on first use: one untimed pass each
 				for (Path f : files) {
 					PlanarImage n = Normalise.percentiles(ImageFiles.read(f), model.header().normLow, model.header().normHigh);
 					one.predictMaps(n, null);
 					four.predictMaps(n, null);
 					big.predictMaps(n, null);
+					djl.predictMaps(n, null);
 				}
 				for (Path f : files) {
 					long t = System.nanoTime();
@@ -121,6 +123,9 @@ public final class SpeedBenchmark {
 					t = System.nanoTime();
 					big.predictMaps(n, null);
 					bigTiles.add(t, mp);
+					t = System.nanoTime();
+					djl.predictMaps(n, null);
+					djlStage.add(t, mp);
 					t = System.nanoTime();
 					float[] p4 = four.predictMaps(n, null)[0];
 					flips.add(t, mp);
@@ -156,7 +161,7 @@ public final class SpeedBenchmark {
 				}
 				out.append(String.format(Locale.ROOT, "%d image(s), %.2f MP, network %,d FLOP per pixel%n", files.size(), read.megapixels, flops));
 				out.append(String.format(Locale.ROOT, "%-34s %9s %9s%n", "stage", "seconds", "MP/s"));
-				for (Stage s : List.of(read, norm, net, bigTiles, flips, fit, inst, seedStage, floodStage, outl, write))
+				for (Stage s : List.of(read, norm, net, bigTiles, djlStage, flips, fit, inst, seedStage, floodStage, outl, write))
 					out.append(String.format(Locale.ROOT, "%-34s %9.3f %9.3f%n", s.name, s.seconds, s.megapixels / s.seconds));
 				double gf = flops * net.megapixels * 1e6 / net.seconds / 1e9;
 				out.append(String.format(Locale.ROOT, "network: %.1f GFLOP/s = %.0f %% of the matrix product (image pixels only; tile context not counted)%n", gf, 100 * gf / gemm));

@@ -1,0 +1,75 @@
+package org.corral.predict;
+
+import ai.onnxruntime.OnnxTensor;
+import ai.onnxruntime.OrtEnvironment;
+import ai.onnxruntime.OrtException;
+import ai.onnxruntime.OrtLoggingLevel;
+import ai.onnxruntime.OrtSession;
+
+import java.nio.FloatBuffer;
+import java.util.Map;
+
+import org.corral.CorralException;
+
+/**
+ * A {@link FoldedNetwork} run by ONNX Runtime (CPU): its graph optimiser fuses each convolution
+ * with its ReLU and lays the tensors out in channel blocks for the CPU's vector width, which DJL's
+ * PyTorch binding does not expose. Measured on these machines (2 cores, AVX-512), the default
+ * network on a 416x416 tile: 3.5 MP/s against 0.6 with DJL, the probabilities equal to 1e-4.
+ */
+public final class OnnxNetwork implements TileNetwork {
+	private final OrtEnvironment env;
+	private final OrtSession session;
+	private final int channels, outputs;
+
+	private OnnxNetwork(OrtEnvironment env, OrtSession session, int channels, int outputs) {
+		this.env = env;
+		this.session = session;
+		this.channels = channels;
+		this.outputs = outputs;
+	}
+
+	/**
+	 * @param threads threads for one network pass (0: one per core)
+	 * @throws OrtException when the runtime cannot load on this machine or refuses the graph
+	 */
+	public static OnnxNetwork of(FoldedNetwork net, int threads) throws OrtException {
+		OrtEnvironment env = OrtEnvironment.getEnvironment(OrtLoggingLevel.ORT_LOGGING_LEVEL_ERROR, "corral");
+		try (OrtSession.SessionOptions o = new OrtSession.SessionOptions()) {
+			o.setOptimizationLevel(OrtSession.SessionOptions.OptLevel.ALL_OPT);
+			o.setIntraOpNumThreads(threads > 0 ? threads : Runtime.getRuntime().availableProcessors());
+			o.setInterOpNumThreads(1);
+			// idle threads sleep instead of spinning: the instance stage runs on the same cores right after
+			o.addConfigEntry("session.intra_op.allow_spinning", "0");
+			return new OnnxNetwork(env, env.createSession(OnnxGraph.of(net), o), net.inChannels(), net.head().outputs());
+		}
+	}
+
+	@Override
+	public float[] probabilities(float[] inputs, int n, int h, int w) {
+		if (inputs.length != (long) n * channels * h * w) throw new IllegalArgumentException("inputs hold " + inputs.length + " values, not " + n + "x" + channels + "x" + h + "x" + w);
+		try (OnnxTensor x = OnnxTensor.createTensor(env, FloatBuffer.wrap(inputs), new long[] {n, channels, h, w});
+			OrtSession.Result r = session.run(Map.of(OnnxGraph.INPUT, x))) {
+			FloatBuffer p = ((OnnxTensor) r.get(0)).getFloatBuffer();
+			float[] out = new float[n * outputs * h * w];
+			p.get(out);
+			return out;
+		} catch (OrtException e) {
+			throw new CorralException("The network could not run on a tile of " + w + "x" + h + ": " + e.getMessage());
+		}
+	}
+
+	@Override
+	public String engine() {
+		return "ONNX Runtime " + env.getVersion();
+	}
+
+	@Override
+	public void close() {
+		try {
+			session.close();
+		} catch (OrtException e) {
+			throw new CorralException("Could not release the network: " + e.getMessage());
+		}
+	}
+}
