@@ -40,6 +40,7 @@ public final class OnnxNetwork implements TileNetwork {
 			o.setIntraOpNumThreads(threads > 0 ? threads : Runtime.getRuntime().availableProcessors());
 			o.setInterOpNumThreads(1);
 			// idle threads sleep instead of spinning: the instance stage runs on the same cores right after
+			// (no loss of network speed measured: 1.75-1.97 MP/s spinning, 1.78-2.44 not, same run)
 			o.addConfigEntry("session.intra_op.allow_spinning", "0");
 			return new OnnxNetwork(env, env.createSession(OnnxGraph.of(net), o), net.inChannels(), net.head().outputs());
 		}

@@ -22,7 +22,8 @@ import org.corral.net.UNet;
 public final class TiledPredictor implements AutoCloseable {
 	private final UNet net;
 	private final NDManager manager;
-	private final int tile, overlap;
+	private final int overlap;
+	private int tile;
 	private int flips = 1, tilesComputed;
 	/** The network with batch normalisation folded in, made at the first prediction (parameters are final by then). */
 	private FoldedNetwork folded;
@@ -61,29 +62,43 @@ public final class TiledPredictor implements AutoCloseable {
 	}
 
 	/**
-	 * Tiles sized so that the network's largest buffer, the decoder's full-resolution concatenation
-	 * ({@link UNet#widestFullResolution()} channels, context included), stays within 32 MiB: the
-	 * largest buffer glibc can be told to reuse instead of mapping it afresh (fresh pages cost about
-	 * 7 us each on these machines: measured, PLATFORM.md). For the default network that is 352 px;
-	 * measured on 10 BBBC039 fields of 696x520 ({@code benchmark --speed}, 2 cores): one pass at 0.50
-	 * MP/s with tiles of at most 640, 0.95-1.00 with 352-448 (2x2 tiles of 348x260), 0.86 with 320.
+	 * Tiles sized for the engine that runs them. DJL: the network's largest buffer, the decoder's
+	 * full-resolution concatenation ({@link UNet#widestFullResolution()} channels, context included),
+	 * stays within 32 MiB, the largest buffer glibc can be told to reuse instead of mapping it afresh
+	 * (fresh pages cost about 7 us each on these machines: measured, PLATFORM.md); 352 px for the
+	 * default network (measured: 0.95-1.00 MP/s against 0.50 with tiles of 640). ONNX Runtime reuses
+	 * its own buffers, so there only the context matters, which large tiles spread thinner: 1.78 MP/s
+	 * with tiles of 352, 2.72 with 1024 (one tile per 696x520 field) on 10 BBBC039 fields, 2 cores;
+	 * its budget of {@value #ONNX_BUFFER_MIB} MiB gives 1040 px for the default network.
 	 */
 	public TiledPredictor(UNet net, NDManager manager) {
-		this(net, manager, defaultTile(net), OVERLAP);
+		this(net, manager, ENGINE_DEFAULT, OVERLAP);
 	}
 
+	private static final int ENGINE_DEFAULT = Integer.MAX_VALUE;
 	static final long REUSED_BUFFER_BYTES = 32L << 20;
+	static final int ONNX_BUFFER_MIB = 224;
 	/** Mirrored context on each side of a tile: more than the default network's receptive field reaches. */
 	static final int OVERLAP = 32;
 
-	/** The tile side the default constructor uses for this network. */
-	public static int defaultTile(UNet net) {
-		return tileFor(net, OVERLAP);
+	/** The tile side the default constructor uses for this network in this engine. */
+	public static int defaultTile(UNet net, Engine engine) {
+		return tileFor(net, OVERLAP, engine == Engine.ONNX ? (long) ONNX_BUFFER_MIB << 20 : REUSED_BUFFER_BYTES);
 	}
 
-	/** The largest tile side (a multiple of the pooling grid, at least 64) whose widest buffer fits {@link #REUSED_BUFFER_BYTES}. */
+	/** The tile side this predictor uses (known once its network runs: it depends on the engine). */
+	public int tile() {
+		network();
+		return tile;
+	}
+
 	static int tileFor(UNet net, int overlap) {
-		double side = Math.sqrt(REUSED_BUFFER_BYTES / (4.0 * net.widestFullResolution())) - 2 * overlap;
+		return tileFor(net, overlap, REUSED_BUFFER_BYTES);
+	}
+
+	/** The largest tile side (a multiple of the pooling grid, at least 64) whose widest buffer fits {@code bytes}. */
+	static int tileFor(UNet net, int overlap, long bytes) {
+		double side = Math.sqrt(bytes / (4.0 * net.widestFullResolution())) - 2 * overlap;
 		int m = net.multiple();
 		return Math.max(64, (int) (side / m) * m);
 	}
@@ -136,19 +151,18 @@ public final class TiledPredictor implements AutoCloseable {
 				int ox = Math.floorDiv(tx - overlap, m) * m, oy = Math.floorDiv(ty - overlap, m) * m;
 				int iw = roundUp(tx + cw + overlap - ox, m), ih = roundUp(ty + ch + overlap - oy, m);
 				float[] in = tileWithContext(im, ox, oy, iw, ih);
-				// test-time flips: the mirrored tiles go through the network as one batch, are mirrored back and averaged
+				// test-time flips: predict the mirrored tile, mirror back, average. One flip per call: a batch of
+				// four ran no faster in ONNX Runtime (0.45-0.76 against 0.70-0.77 MP/s, measured) and needs 4x the memory
 				int plane = iw * ih;
-				float[] batch = new float[flips * c * plane];
-				for (int f = 0; f < flips; f++)
-					for (int k = 0; k < c; k++) mirror(in, k * plane, batch, (f * c + k) * plane, iw, ih, f);
-				float[] pf = network.probabilities(batch, flips, ih, iw);
-				float[] p = new float[no * plane];
-				for (int f = 0; f < flips; f++)
+				float[] p = new float[no * plane], mirrored = new float[c * plane], back = new float[plane];
+				for (int f = 0; f < flips; f++) {
+					for (int k = 0; k < c; k++) mirror(in, k * plane, mirrored, k * plane, iw, ih, f);
+					float[] pf = network.probabilities(mirrored, 1, ih, iw);
 					for (int o = 0; o < no; o++) {
-						float[] back = new float[plane];
-						mirror(pf, (f * no + o) * plane, back, 0, iw, ih, f);
+						mirror(pf, o * plane, back, 0, iw, ih, f);
 						for (int i = 0; i < plane; i++) p[o * plane + i] += back[i] / flips;
 					}
+				}
 				int dx = tx - ox, dy = ty - oy;
 				for (int o = 0; o < no; o++)
 					for (int y = 0; y < ch; y++)
@@ -174,6 +188,7 @@ public final class TiledPredictor implements AutoCloseable {
 			}
 		}
 		if (network == null) network = folded;
+		if (tile == ENGINE_DEFAULT) tile = defaultTile(net, network instanceof OnnxNetwork ? Engine.ONNX : Engine.DJL);
 		return network;
 	}
 

@@ -41,7 +41,7 @@ class OnnxNetworkTest {
 		}
 	}
 
-	/** Four flips through one ONNX batch give the maps DJL gives with the same flips, across tile seams. */
+	/** Four flips in ONNX Runtime give the maps DJL gives with the same flips, across tile seams. */
 	@Test
 	void tiledFlipsAgreeAcrossEngines() {
 		try (NDManager m = NDManager.newBaseManager()) {
