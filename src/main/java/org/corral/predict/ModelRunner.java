@@ -25,8 +25,14 @@ public final class ModelRunner implements AutoCloseable {
 
 	private final ModelHeader header;
 	private final NDManager manager;
-	/** Made at the first prediction: its tile size depends on the network. */
+	/** Made at the first prediction: its tile size depends on the network and the engine. */
 	private TiledPredictor predictor;
+	/** Tiles of the smaller side that box masks use when their boxes cover little of the image. */
+	private TiledPredictor smallTiles;
+	/** The one that ran last, for {@link #tilesComputed()}. */
+	private TiledPredictor last;
+	/** A fixed tile side for every prediction; 0: chosen as above. */
+	private int fixedTile;
 	private final UNet net;
 
 	public ModelRunner(ModelHeader header, UNet net, NDManager manager) {
@@ -142,20 +148,45 @@ public final class ModelRunner implements AutoCloseable {
 
 	/** Tiles the last prediction computed. */
 	public int tilesComputed() {
-		return predictor == null ? 0 : predictor.tilesComputed();
+		return last == null ? 0 : last.tilesComputed();
+	}
+
+	/**
+	 * Every prediction in tiles of at most {@code side} pixels (0, the default: the engine's tile
+	 * side, and for boxes the smaller one when that computes fewer pixels).
+	 */
+	public ModelRunner optTile(int side) {
+		if (predictor != null) throw new IllegalStateException("set the tile side before the first prediction");
+		if (side != 0 && side < 16) throw new IllegalArgumentException("tiles must be at least 16 pixels, got " + side);
+		fixedTile = side;
+		return this;
+	}
+
+	/**
+	 * The predictor for an image of {@code w x h} of which only {@code regions} are needed (null: all):
+	 * the engine's large tiles, unless the smaller tiles of {@link TiledPredictor#defaultTile} for DJL
+	 * would compute fewer pixels, context included (a few boxes on a large image).
+	 */
+	private TiledPredictor predictorFor(int w, int h, List<int[]> regions) {
+		if (predictor == null) predictor = fixedTile > 0 ? new TiledPredictor(net, manager, fixedTile, TiledPredictor.OVERLAP) : new TiledPredictor(net, manager);
+		if (regions == null || fixedTile > 0) return predictor;
+		int small = TiledPredictor.defaultTile(net, TiledPredictor.Engine.DJL);
+		if (small >= predictor.tile()) return predictor;
+		if (smallTiles == null) smallTiles = new TiledPredictor(net, manager, small, TiledPredictor.OVERLAP);
+		return smallTiles.work(w, h, regions) < predictor.work(w, h, regions) ? smallTiles : predictor;
 	}
 
 	private synchronized float[][] maps(PlanarImage raw, float[][] bounds, double scale, List<Box> boxes, BooleanSupplier cancelled, int flips) {
-		if (predictor == null) predictor = new TiledPredictor(net, manager);
-		predictor.optFlips(flips);
 		if (raw.nChannels() != header.inChannels)
 			throw new CorralException("The model was learned on " + header.inChannels + "-channel images; this image has " + raw.nChannels());
 		int no = Math.max(1, header.outputs);
 		if (constant(raw)) return new float[no][raw.width * raw.height]; // no contrast, no objects
 		PlanarImage norm = bounds != null ? Normalise.with(raw, bounds) : Normalise.percentiles(raw, header.normLow, header.normHigh);
-		if (scale == 1) return finite(predictor.predictMaps(norm, boxes == null ? null : regions(boxes, raw, raw.width, raw.height), cancelled));
-		int sw = Math.max(1, (int) Math.round(raw.width * scale)), sh = Math.max(1, (int) Math.round(raw.height * scale));
-		float[][] p = finite(predictor.predictMaps(Resample.bilinear(norm, sw, sh), boxes == null ? null : regions(boxes, raw, sw, sh), cancelled));
+		int sw = scale == 1 ? raw.width : Math.max(1, (int) Math.round(raw.width * scale)), sh = scale == 1 ? raw.height : Math.max(1, (int) Math.round(raw.height * scale));
+		List<int[]> regions = boxes == null ? null : regions(boxes, raw, sw, sh);
+		last = predictorFor(sw, sh, regions).optFlips(flips);
+		if (scale == 1) return finite(last.predictMaps(norm, regions, cancelled));
+		float[][] p = finite(last.predictMaps(Resample.bilinear(norm, sw, sh), regions, cancelled));
 		for (int o = 0; o < p.length; o++) p[o] = Resample.bilinear(p[o], sw, sh, raw.width, raw.height);
 		return p;
 	}
@@ -202,6 +233,7 @@ public final class ModelRunner implements AutoCloseable {
 	@Override
 	public void close() {
 		if (predictor != null) predictor.close();
+		if (smallTiles != null) smallTiles.close();
 		manager.close();
 	}
 }

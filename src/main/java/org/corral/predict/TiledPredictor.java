@@ -135,39 +135,30 @@ public final class TiledPredictor implements AutoCloseable {
 		int no = net.outputs();
 		tilesComputed = 0;
 		float[][] out = new float[no][w * h];
-		int m = net.multiple();
 		TileNetwork network = network();
 		int c = im.nChannels();
-		// as few tiles as the size limit allows, all of about the same size: no tile is mostly padding
-		int nx = (w + tile - 1) / tile, ny = (h + tile - 1) / tile;
-		int tw = (w + nx - 1) / nx, th = (h + ny - 1) / ny;
-		for (int ty = 0; ty < h; ty += th)
-			for (int tx = 0; tx < w; tx += tw) {
-				if (cancelled != null && cancelled.getAsBoolean()) throw new java.util.concurrent.CancellationException("prediction cancelled");
-				int cw = Math.min(tw, w - tx), ch = Math.min(th, h - ty);
-				if (regions != null && !meets(regions, tx, ty, tx + cw, ty + ch)) continue;
-				tilesComputed++;
-				// tile origins on the pooling grid of the whole image, so every tile pools alike
-				int ox = Math.floorDiv(tx - overlap, m) * m, oy = Math.floorDiv(ty - overlap, m) * m;
-				int iw = roundUp(tx + cw + overlap - ox, m), ih = roundUp(ty + ch + overlap - oy, m);
-				float[] in = tileWithContext(im, ox, oy, iw, ih);
-				// test-time flips: predict the mirrored tile, mirror back, average. One flip per call: a batch of
-				// four ran no faster in ONNX Runtime (0.45-0.76 against 0.70-0.77 MP/s, measured) and needs 4x the memory
-				int plane = iw * ih;
-				float[] p = new float[no * plane], mirrored = new float[c * plane], back = new float[plane];
-				for (int f = 0; f < flips; f++) {
-					for (int k = 0; k < c; k++) mirror(in, k * plane, mirrored, k * plane, iw, ih, f);
-					float[] pf = network.probabilities(mirrored, 1, ih, iw);
-					for (int o = 0; o < no; o++) {
-						mirror(pf, o * plane, back, 0, iw, ih, f);
-						for (int i = 0; i < plane; i++) p[o * plane + i] += back[i] / flips;
-					}
+		for (int[] t : layout(w, h, regions)) {
+			if (cancelled != null && cancelled.getAsBoolean()) throw new java.util.concurrent.CancellationException("prediction cancelled");
+			int tx = t[0], ty = t[1], cw = t[2], ch = t[3], ox = t[4], oy = t[5], iw = t[6], ih = t[7];
+			tilesComputed++;
+			float[] in = tileWithContext(im, ox, oy, iw, ih);
+			// test-time flips: predict the mirrored tile, mirror back, average. One flip per call: a batch of
+			// four ran no faster in ONNX Runtime (0.45-0.76 against 0.70-0.77 MP/s, measured) and needs 4x the memory
+			int plane = iw * ih;
+			float[] p = new float[no * plane], mirrored = new float[c * plane], back = new float[plane];
+			for (int f = 0; f < flips; f++) {
+				for (int k = 0; k < c; k++) mirror(in, k * plane, mirrored, k * plane, iw, ih, f);
+				float[] pf = network.probabilities(mirrored, 1, ih, iw);
+				for (int o = 0; o < no; o++) {
+					mirror(pf, o * plane, back, 0, iw, ih, f);
+					for (int i = 0; i < plane; i++) p[o * plane + i] += back[i] / flips;
 				}
-				int dx = tx - ox, dy = ty - oy;
-				for (int o = 0; o < no; o++)
-					for (int y = 0; y < ch; y++)
-						System.arraycopy(p, o * plane + (y + dy) * iw + dx, out[o], (ty + y) * w + tx, cw);
 			}
+			int dx = tx - ox, dy = ty - oy;
+			for (int o = 0; o < no; o++)
+				for (int y = 0; y < ch; y++)
+					System.arraycopy(p, o * plane + (y + dy) * iw + dx, out[o], (ty + y) * w + tx, cw);
+		}
 		return out;
 	}
 
@@ -231,6 +222,35 @@ public final class TiledPredictor implements AutoCloseable {
 			for (int i = c * iw * ih; cur.hasNext(); i++) in[i] = cur.next().get();
 		}
 		return in;
+	}
+
+	/**
+	 * The tiles for an image of {@code w x h}, only those meeting {@code regions} (null: all), each
+	 * {x, y, width, height} of the part kept and {x, y, width, height} of the network's input around it.
+	 */
+	private java.util.List<int[]> layout(int w, int h, java.util.List<int[]> regions) {
+		network(); // the tile side depends on the engine
+		int m = net.multiple();
+		java.util.List<int[]> tiles = new java.util.ArrayList<>();
+		// as few tiles as the size limit allows, all of about the same size: no tile is mostly padding
+		int nx = (w + tile - 1) / tile, ny = (h + tile - 1) / tile;
+		int tw = (w + nx - 1) / nx, th = (h + ny - 1) / ny;
+		for (int ty = 0; ty < h; ty += th)
+			for (int tx = 0; tx < w; tx += tw) {
+				int cw = Math.min(tw, w - tx), ch = Math.min(th, h - ty);
+				if (regions != null && !meets(regions, tx, ty, tx + cw, ty + ch)) continue;
+				// tile origins on the pooling grid of the whole image, so every tile pools alike
+				int ox = Math.floorDiv(tx - overlap, m) * m, oy = Math.floorDiv(ty - overlap, m) * m;
+				tiles.add(new int[] {tx, ty, cw, ch, ox, oy, roundUp(tx + cw + overlap - ox, m), roundUp(ty + ch + overlap - oy, m)});
+			}
+		return tiles;
+	}
+
+	/** Pixels the network would process (context included) to predict {@code regions} of an image of {@code w x h} (null: all of it). */
+	public long work(int w, int h, java.util.List<int[]> regions) {
+		long px = 0;
+		for (int[] t : layout(w, h, regions)) px += (long) t[6] * t[7];
+		return px;
 	}
 
 	private static boolean meets(java.util.List<int[]> regions, int x0, int y0, int x1, int y1) {

@@ -43,7 +43,8 @@ class BoxMapsTest {
 		assertTrue(corner.size() >= 5, corner.size() + " boxes in the corner");
 		corner.add(new Box(corner.size(), 230, 100, 26, 26));
 		corner.add(new Box(corner.size(), 100, 230, 26, 26));
-		try (ModelRunner m = ModelRunner.open(model)) {
+		// tiles of 352 for both, so that the whole-image maps are laid out as the boxes' tiles are
+		try (ModelRunner m = ModelRunner.open(model).optTile(352)) {
 			for (double scale : new double[] {1, 1.37, 0.71}) {
 				float[] whole = m.maps(raw, scale, null, 1)[0];
 				int allTiles = m.tilesComputed();
@@ -57,6 +58,24 @@ class BoxMapsTest {
 				assertArrayEquals(BoxMasks.make(whole, raw.width, raw.height, corner, BoxMasks.Options.DEFAULTS).labels(),
 					BoxMasks.make(part, raw.width, raw.height, corner, BoxMasks.Options.DEFAULTS).labels(), "scale " + scale);
 			}
+		}
+		// default tiles: the whole 512x512 field is one large tile; the corner's boxes take the smaller
+		// tiles, which compute less, and every box is given the large tile again
+		try (ModelRunner m = ModelRunner.open(model)) {
+			float[] whole = m.maps(raw, 1, null, 1)[0];
+			assertEquals(1, m.tilesComputed(), "one tile for the whole field");
+			float[] part = m.boxMaps(raw, corner, 1, null, 1)[0];
+			assertEquals(3, m.tilesComputed(), "small tiles: the corner and the two it meets through the boxes on its edges (3 x 320x320 px, against 576x576 px for the large tile)");
+			double maxDiff = 0;
+			for (Box b : corner)
+				for (int y = b.y(); y < b.y() + b.height(); y++)
+					for (int x = b.x(); x < b.x() + b.width(); x++) maxDiff = Math.max(maxDiff, Math.abs(whole[y * raw.width + x] - part[y * raw.width + x]));
+			// other tiles see other context: 32 px of it on each side, while the default network's field of
+			// view reaches 44 px (2 + 4 + 8 + 16 + 8 + 4 + 2 for its convolution pairs), so far-away pixels move
+			// the maps a little (measured 0.0014)
+			assertEquals(0, maxDiff, 0.01, "other tiles, nearly the same maps");
+			m.boxMaps(raw, all.get("seedcoat-field-01.tif"), 1, null, 1);
+			assertEquals(1, m.tilesComputed(), "every object boxed: the one large tile");
 		}
 	}
 }
