@@ -51,6 +51,9 @@ class InstallTest {
 		assertTrue(jars.stream().anyMatch(n -> n.startsWith("api-0.36.0")), "DJL api in jars/: " + jars);
 		assertTrue(jars.stream().anyMatch(n -> n.startsWith("pytorch-engine-")), "DJL PyTorch engine in jars/: " + jars);
 		assertTrue(jars.stream().anyMatch(n -> n.startsWith("pytorch-jni-")), "PyTorch JNI in jars/: " + jars);
+		// inference: ONNX Runtime carries its native libraries inside its jar; protobuf-java writes the graph
+		assertTrue(jars.stream().anyMatch(n -> n.startsWith("onnxruntime-")), "ONNX Runtime in jars/: " + jars);
+		assertTrue(jars.stream().anyMatch(n -> n.startsWith("protobuf-java-")), "protobuf-java in jars/: " + jars);
 		assertTrue(names(fiji.resolve("jars/linux64")).stream().anyMatch(n -> n.startsWith("pytorch-native-cpu")), "native CPU library in jars/linux64/");
 	}
 
