@@ -107,31 +107,30 @@ public final class OnnxGraph {
 		private final ByteArrayOutputStream buffer = new ByteArrayOutputStream();
 		private final CodedOutputStream out = CodedOutputStream.newInstance(buffer);
 
-		Message int64(int field, long v) {
+		/** One write to the in-memory stream, which cannot fail for I/O reasons. */
+		private interface Write {
+			void to(CodedOutputStream out) throws IOException;
+		}
+
+		private Message put(Write w) {
 			try {
-				out.writeInt64(field, v);
+				w.to(out);
 			} catch (IOException e) {
 				throw new UncheckedIOException(e);
 			}
 			return this;
+		}
+
+		Message int64(int field, long v) {
+			return put(o -> o.writeInt64(field, v));
 		}
 
 		Message string(int field, String v) {
-			try {
-				out.writeString(field, v);
-			} catch (IOException e) {
-				throw new UncheckedIOException(e);
-			}
-			return this;
+			return put(o -> o.writeString(field, v));
 		}
 
 		Message bytes(int field, byte[] v) {
-			try {
-				out.writeByteArray(field, v);
-			} catch (IOException e) {
-				throw new UncheckedIOException(e);
-			}
-			return this;
+			return put(o -> o.writeByteArray(field, v));
 		}
 
 		Message message(int field, Message m) {
@@ -139,11 +138,7 @@ public final class OnnxGraph {
 		}
 
 		byte[] bytes() {
-			try {
-				out.flush();
-			} catch (IOException e) {
-				throw new UncheckedIOException(e);
-			}
+			put(CodedOutputStream::flush);
 			return buffer.toByteArray();
 		}
 	}

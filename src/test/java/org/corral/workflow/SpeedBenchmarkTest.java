@@ -17,7 +17,7 @@ class SpeedBenchmarkTest {
 		LearnSettings s = new LearnSettings();
 		s.steps = 4;
 		String out = SpeedBenchmark.run(Path.of("test-images", "images"), Path.of("test-images", "boxes.csv"), null, s, l -> {});
-		for (String stage : new String[] {"read", "normalise", "network, 1 pass, tiles of 352", "network, 1 pass, tiles of 640", "network, 4 flips (box masks)", "box masks, fitted", "instance stage (whole image)",
+		for (String stage : new String[] {"read", "normalise", "network, 1 pass, tiles of 1040", "network, 1 pass, tiles of 352", "network, 1 pass, in DJL", "network, 4 flips (box masks)", "box masks, fitted", "instance stage (whole image)",
 			"  of which seeds", "  of which flooding", "outlines", "writing"}) {
 			Matcher m = Pattern.compile("(?m)^" + Pattern.quote(stage) + " +([0-9.]+) +([0-9.]+)$").matcher(out);
 			assertTrue(m.find(), "row '" + stage + "' in\n" + out);
@@ -27,6 +27,7 @@ class SpeedBenchmarkTest {
 		assertTrue(out.contains(String.format(java.util.Locale.ROOT, "%,d FLOP per pixel", new org.corral.net.UNet(1, 16, 4, 2).flopsPerPixel())), out);
 		assertTrue(Pattern.compile("learning: [0-9.]+ s/step \\(median of 4 steps; batch 8 of 128x128").matcher(out).find(), out);
 		assertTrue(Pattern.compile("network: [0-9.]+ GFLOP/s = [0-9]+ % of the matrix product").matcher(out).find(), out);
+		assertTrue(out.contains("network engine: ONNX Runtime"), "the engine is named: " + out);
 		assertTrue(Pattern.compile("end to end: mask-image [0-9.]+ MP/s").matcher(out).find(), out);
 		Matcher mp = Pattern.compile("(\\d+) image\\(s\\), ([0-9.]+) MP").matcher(out);
 		assertTrue(mp.find(), out);
