@@ -92,10 +92,6 @@ public final class TiledPredictor implements AutoCloseable {
 		return tile;
 	}
 
-	static int tileFor(UNet net, int overlap) {
-		return tileFor(net, overlap, REUSED_BUFFER_BYTES);
-	}
-
 	/** The largest tile side (a multiple of the pooling grid, at least 64) whose widest buffer fits {@code bytes}. */
 	static int tileFor(UNet net, int overlap, long bytes) {
 		double side = Math.sqrt(bytes / (4.0 * net.widestFullResolution())) - 2 * overlap;
@@ -145,13 +141,16 @@ public final class TiledPredictor implements AutoCloseable {
 			// test-time flips: predict the mirrored tile, mirror back, average. One flip per call: a batch of
 			// four ran no faster in ONNX Runtime (0.45-0.76 against 0.70-0.77 MP/s, measured) and needs 4x the memory
 			int plane = iw * ih;
-			float[] p = new float[no * plane], mirrored = new float[c * plane], back = new float[plane];
-			for (int f = 0; f < flips; f++) {
-				for (int k = 0; k < c; k++) mirror(in, k * plane, mirrored, k * plane, iw, ih, f);
-				float[] pf = network.probabilities(mirrored, 1, ih, iw);
-				for (int o = 0; o < no; o++) {
-					mirror(pf, o * plane, back, 0, iw, ih, f);
-					for (int i = 0; i < plane; i++) p[o * plane + i] += back[i] / flips;
+			float[] p = flips == 1 ? network.probabilities(in, 1, ih, iw) : new float[no * plane];
+			if (flips > 1) {
+				float[] mirrored = new float[c * plane], back = new float[plane];
+				for (int f = 0; f < flips; f++) {
+					for (int k = 0; k < c; k++) mirror(in, k * plane, mirrored, k * plane, iw, ih, f);
+					float[] pf = network.probabilities(mirrored, 1, ih, iw);
+					for (int o = 0; o < no; o++) {
+						mirror(pf, o * plane, back, 0, iw, ih, f);
+						for (int i = 0; i < plane; i++) p[o * plane + i] += back[i] / flips;
+					}
 				}
 			}
 			int dx = tx - ox, dy = ty - oy;
@@ -229,7 +228,7 @@ public final class TiledPredictor implements AutoCloseable {
 	 * {x, y, width, height} of the part kept and {x, y, width, height} of the network's input around it.
 	 */
 	private java.util.List<int[]> layout(int w, int h, java.util.List<int[]> regions) {
-		network(); // the tile side depends on the engine
+		if (tile == ENGINE_DEFAULT) network(); // the default tile side depends on the engine that runs
 		int m = net.multiple();
 		java.util.List<int[]> tiles = new java.util.ArrayList<>();
 		// as few tiles as the size limit allows, all of about the same size: no tile is mostly padding

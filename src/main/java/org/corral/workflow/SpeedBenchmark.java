@@ -91,14 +91,17 @@ public final class SpeedBenchmark {
 		}
 		try (model; NDManager m = NDManager.newBaseManager()) {
 			long flops = model.net().flopsPerPixel();
-			Stage read = new Stage("read"), norm = new Stage("normalise"), net = new Stage("network, 1 pass, tiles of " + TiledPredictor.defaultTile(model.net(), TiledPredictor.Engine.ONNX)), flips = new Stage("network, 4 flips (box masks)"),
+			Stage read = new Stage("read"), norm = new Stage("normalise"), flips = new Stage("network, 4 flips (box masks)"),
 				inst = new Stage("instance stage (whole image)"), seedStage = new Stage("  of which seeds"), floodStage = new Stage("  of which flooding"),
 				outl = new Stage("outlines"), write = new Stage("writing"), fit = new Stage("box masks, fitted");
-			Stage bigTiles = new Stage("network, 1 pass, tiles of 352"), djlStage = new Stage("network, 1 pass, in DJL");
+			int djlTile = TiledPredictor.defaultTile(model.net(), TiledPredictor.Engine.DJL);
 			Path tmp = Files.createTempDirectory("corral-speed");
 			try (TiledPredictor one = new TiledPredictor(model.net(), m); TiledPredictor four = new TiledPredictor(model.net(), m).optFlips(4);
-				TiledPredictor big = new TiledPredictor(model.net(), m, 352, 32);
+				TiledPredictor big = new TiledPredictor(model.net(), m, djlTile, 32);
 				TiledPredictor djl = new TiledPredictor(model.net(), m).optEngine(TiledPredictor.Engine.DJL)) {
+				// the engine's own tile side, and DJL's beside it, in both engines
+				Stage net = new Stage("network, 1 pass, tiles of " + one.tile()), bigTiles = new Stage("network, 1 pass, tiles of " + djlTile),
+					djlStage = new Stage("network, 1 pass, in DJL");
 				out.append("network engine: " + one.network().engine() + " (compared: " + djl.network().engine() + ")\n");
 				// the engine prepares its kernels for each new tile shape on first use: one untimed pass each
 				for (Path f : files) {

@@ -50,14 +50,14 @@ class TiledPredictorTest {
 	@Test
 	void defaultTilesKeepTheWidestBufferWithin32MiB() {
 		UNet net = new UNet(1, 16, 4);
-		int t = TiledPredictor.tileFor(net, 32);
+		int t = TiledPredictor.tileFor(net, 32, TiledPredictor.REUSED_BUFFER_BYTES);
 		assertEquals(352, t, "default network: 48 channels at full resolution");
 		assertEquals(0, t % net.multiple());
 		long bytes = 4L * 48 * (t + 64) * (t + 64), next = 4L * 48 * (t + 8 + 64) * (t + 8 + 64);
 		assertEquals(true, bytes <= 32L << 20 && next > 32L << 20, bytes + " bytes fit, one grid step more would not");
 		// width 128: 384 channels, sqrt(32 MiB / (4 x 384)) - 64 = 83.8, down to the pooling grid of 8
-		assertEquals(80, TiledPredictor.tileFor(new UNet(1, 128, 4), 32));
-		assertEquals(64, TiledPredictor.tileFor(new UNet(1, 128, 6), 32), "never below 64, however wide");
+		assertEquals(80, TiledPredictor.tileFor(new UNet(1, 128, 4), 32, TiledPredictor.REUSED_BUFFER_BYTES));
+		assertEquals(64, TiledPredictor.tileFor(new UNet(1, 128, 6), 32, TiledPredictor.REUSED_BUFFER_BYTES), "never below 64, however wide");
 	}
 
 	@Test
