@@ -7,7 +7,6 @@ import ij.process.ByteProcessor;
 
 import java.io.DataOutputStream;
 import java.nio.file.Path;
-import java.util.ArrayList;
 import java.util.List;
 import java.util.zip.ZipEntry;
 import java.util.zip.ZipOutputStream;
@@ -65,12 +64,11 @@ public final class RoiSets {
 			ZipOutputStream zos = new ZipOutputStream(out);
 			DataOutputStream dos = new DataOutputStream(zos);
 			RoiEncoder enc = new RoiEncoder(dos);
-			List<String> used = new ArrayList<>();
+			java.util.Set<String> used = new java.util.HashSet<>(); // a list's lookups made 45,696 outlines take ~10 s
 			for (Roi r : rois) {
 				if (r == null) continue;
 				String name = r.getName();
-				while (used.contains(name)) name = name + "_";
-				used.add(name);
+				while (!used.add(name)) name = name + "_";
 				ZipEntry e = new ZipEntry(name + ".roi");
 				e.setTimeLocal(ENTRY_TIME); // the same outlines give the same bytes, whenever and wherever they are written
 				zos.putNextEntry(e);
