@@ -152,8 +152,10 @@ public final class ImageFiles {
 		imp.setTitle(title); // ImageJ names the image after the file it wrote
 	}
 
-	public static void savePng(java.awt.image.BufferedImage img, Path target) {
-		AtomicFiles.write(target, out -> javax.imageio.ImageIO.write(img, "png", out));
+	public static void savePng(java.awt.image.RenderedImage img, Path target) {
+		AtomicFiles.write(target, out -> {
+			if (!javax.imageio.ImageIO.write(img, "png", out)) throw new java.io.IOException("no PNG encoder for this picture");
+		});
 	}
 
 	/** Label values of a label image file (first slice), as ints. */

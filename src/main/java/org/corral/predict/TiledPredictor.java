@@ -81,6 +81,19 @@ public final class TiledPredictor implements AutoCloseable {
 	/** Mirrored context on each side of a tile: most of the default network's field of view (44 px); what lies beyond moves its maps by about 0.001 (BoxMapsTest). */
 	static final int OVERLAP = 32;
 
+	/**
+	 * At most {@code side} pixels per tile, whatever the engine's own rule gives (a smaller side
+	 * only); set before the first prediction.
+	 */
+	public TiledPredictor optMaxTile(int side) {
+		if (network != null) throw new IllegalStateException("the network already runs");
+		if (side < 16) throw new IllegalArgumentException("tiles must be at least 16 pixels, got " + side);
+		maxTile = side;
+		return this;
+	}
+
+	private int maxTile = Integer.MAX_VALUE;
+
 	/** The tile side the default constructor uses for this network in this engine. */
 	public static int defaultTile(UNet net, Engine engine) {
 		return tileFor(net, OVERLAP, engine == Engine.ONNX ? (long) ONNX_BUFFER_MIB << 20 : REUSED_BUFFER_BYTES);
@@ -179,6 +192,7 @@ public final class TiledPredictor implements AutoCloseable {
 		}
 		if (network == null) network = folded;
 		if (tile == ENGINE_DEFAULT) tile = defaultTile(net, network instanceof OnnxNetwork ? Engine.ONNX : Engine.DJL);
+		tile = Math.min(tile, maxTile);
 		return network;
 	}
 
@@ -228,7 +242,7 @@ public final class TiledPredictor implements AutoCloseable {
 	 * {x, y, width, height} of the part kept and {x, y, width, height} of the network's input around it.
 	 */
 	private java.util.List<int[]> layout(int w, int h, java.util.List<int[]> regions) {
-		if (tile == ENGINE_DEFAULT) network(); // the default tile side depends on the engine that runs
+		if (tile == ENGINE_DEFAULT || maxTile < tile) network(); // the tile side depends on the engine that runs, and the cap
 		int m = net.multiple();
 		java.util.List<int[]> tiles = new java.util.ArrayList<>();
 		// as few tiles as the size limit allows, all of about the same size: no tile is mostly padding

@@ -37,10 +37,17 @@ public final class WholeImage {
 
 	/** As above, in bands of {@code bandRows} rows when the image is taller than that. */
 	static Outcome mask(ModelRunner model, PlanarImage im, double objectSize, int bandRows) {
-		if (im.height > bandRows) return inBands(model, im, objectSize, bandRows);
+		return im.height > bandRows ? inBands(model, im, objectSize, bandRows) : window(model, im, null, objectSize);
+	}
+
+	/**
+	 * One window: the whole image, or with {@code bounds} (the whole image's normalisation bounds) a
+	 * band of a taller one, which then runs in the band's tiles ({@link ModelRunner#BAND_TILE}).
+	 */
+	private static Outcome window(ModelRunner model, PlanarImage im, float[][] bounds, double objectSize) {
 		double byCalibration = objectSize > 0 ? 0 : model.scaleForCalibration(im);
 		double scale = objectSize > 0 ? model.scaleFor(objectSize) : byCalibration > 0 ? byCalibration : 1;
-		float[][] maps = model.maps(im, scale, null, ModelRunner.IMAGE_FLIPS);
+		float[][] maps = model.maps(im, bounds, scale, null, ModelRunner.IMAGE_FLIPS);
 		double learned = model.header().objectSize;
 		ImageMasks.Result r = instances(maps[0], model.instanceMap(maps), im, learned / scale);
 		if (objectSize <= 0 && byCalibration == 0 && r.count() > 0) {
@@ -50,7 +57,7 @@ public final class WholeImage {
 			double s2 = f < ESTIMATE_TOLERANCE && f > 1 / ESTIMATE_TOLERANCE ? 1 : model.scaleFor(measured);
 			if (s2 != 1) {
 				scale = s2;
-				maps = model.maps(im, scale, null, ModelRunner.IMAGE_FLIPS);
+				maps = model.maps(im, bounds, scale, null, ModelRunner.IMAGE_FLIPS);
 				r = instances(maps[0], model.instanceMap(maps), im, learned / scale);
 			}
 		}
@@ -65,14 +72,15 @@ public final class WholeImage {
 	 */
 	static Outcome inBands(ModelRunner model, RowReader im, double objectSize, int band) {
 		int w = im.width(), h = im.height();
+		float[][] bounds = model.normalisationBounds(im);
 		double scale;
 		if (objectSize > 0) scale = model.scaleFor(objectSize);
 		else {
 			double byCalibration = model.scaleForCalibration(im.rows(0, 1)); // a band carries the calibration
 			int mid = Math.max(0, h / 2 - band / 2);
-			scale = byCalibration > 0 ? byCalibration : mask(model, im.rows(mid, Math.min(h, mid + band)), 0).scale();
+			// normalised and tiled as the bands will be
+			scale = byCalibration > 0 ? byCalibration : window(model, im.rows(mid, Math.min(h, mid + band)), bounds, 0).scale();
 		}
-		float[][] bounds = model.normalisationBounds(im);
 		double s = scale, size = model.header().objectSize / scale;
 		int nClasses = model.header().classCount();
 		float[][] classMaps = new float[nClasses][];
