@@ -9,8 +9,6 @@ import org.corral.ReferenceData;
 import org.corral.image.PlanarImage;
 import org.corral.io.ImageFiles;
 import org.corral.predict.ModelRunner;
-import org.corral.train.LearnSettings;
-import org.corral.train.Progress;
 import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.io.TempDir;
 
@@ -21,11 +19,7 @@ class BandTilesTest {
 
 	@Test
 	void bandsTakeTheSmallerTilesAndAgreeWithTheLargeOnes() {
-		LearnSettings s = new LearnSettings();
-		s.steps = 6;
-		s.minutes = 0;
-		Path model = dir.resolve("m.zip");
-		Jobs.learn(BoxedImages.find(ReferenceData.demo().resolve("images"), ReferenceData.demo().resolve("boxes.csv")), null, s, model, Progress.silent(), n -> {}).close();
+		Path model = BoxMapsTest.sixStepModel(dir);
 		// a demo field's top rows, three times side by side: wider than either tile side
 		PlanarImage field = ImageFiles.read(ReferenceData.demo().resolve("fields").resolve("images").resolve("seedcoat-field-01.tif"));
 		int w = 3 * field.width, h = 160;

@@ -26,13 +26,19 @@ class BoxMapsTest {
 	@TempDir
 	Path dir;
 
-	@Test
-	void onlyTheBoxesTilesAreComputedAndTheMasksAreTheSame() {
+	/** A model of 6 steps on the demo's boxes, written to {@code dir}: quick, and its maps are not flat. */
+	static Path sixStepModel(Path dir) {
 		LearnSettings s = new LearnSettings();
 		s.steps = 6;
 		s.minutes = 0;
 		Path model = dir.resolve("m.zip");
 		Jobs.learn(BoxedImages.find(ReferenceData.demo().resolve("images"), ReferenceData.demo().resolve("boxes.csv")), null, s, model, Progress.silent(), n -> {}).close();
+		return model;
+	}
+
+	@Test
+	void onlyTheBoxesTilesAreComputedAndTheMasksAreTheSame() {
+		Path model = sixStepModel(dir);
 		Path fields = ReferenceData.demo().resolve("fields");
 		Map<String, List<Box>> all = BoxFiles.readCsv(fields.resolve("boxes.csv"));
 		PlanarImage raw = ImageFiles.read(fields.resolve("images").resolve("seedcoat-field-01.tif"));
