@@ -50,6 +50,11 @@ public final class ModelHeader {
 	public double pixelSize;
 	public String pixelUnit;
 	public long seed;
+	/**
+	 * Range of each 3x3 convolution's activations on the learning images, for masking in 8 bits
+	 * ({@code org.corral.predict.ActivationRanges}); absent in models of earlier versions, which mask in float.
+	 */
+	public float[] activationRanges;
 	public Map<String, Object> training = new LinkedHashMap<>();
 	public Counts counts = new Counts();
 	public Scores scores = new Scores();

@@ -21,12 +21,14 @@ public final class OnnxNetwork implements TileNetwork {
 	private final OrtEnvironment env;
 	private final OrtSession session;
 	private final int channels, outputs;
+	private final boolean int8;
 
-	private OnnxNetwork(OrtEnvironment env, OrtSession session, int channels, int outputs) {
+	private OnnxNetwork(OrtEnvironment env, OrtSession session, int channels, int outputs, boolean int8) {
 		this.env = env;
 		this.session = session;
 		this.channels = channels;
 		this.outputs = outputs;
+		this.int8 = int8;
 	}
 
 	/**
@@ -34,6 +36,23 @@ public final class OnnxNetwork implements TileNetwork {
 	 * @throws OrtException when the runtime cannot load on this machine or refuses the graph
 	 */
 	public static OnnxNetwork of(FoldedNetwork net, int threads) throws OrtException {
+		return of(OnnxGraph.of(net), net, threads, false);
+	}
+
+	/**
+	 * The network in 8-bit integers ({@link OnnxGraph#int8}) with the activation ranges measured on
+	 * the learning images ({@link ActivationRanges}).
+	 */
+	public static OnnxNetwork int8(FoldedNetwork net, float[] ranges, int threads) throws OrtException {
+		return of(OnnxGraph.int8(net, ranges), net, threads, true);
+	}
+
+	/** The network with every ReLU output as an output too, for {@link ActivationRanges}. */
+	static OnnxNetwork withActivations(FoldedNetwork net, int threads) throws OrtException {
+		return of(OnnxGraph.of(net, true), net, threads, false);
+	}
+
+	private static OnnxNetwork of(byte[] graph, FoldedNetwork net, int threads, boolean int8) throws OrtException {
 		OrtEnvironment env = OrtEnvironment.getEnvironment(OrtLoggingLevel.ORT_LOGGING_LEVEL_ERROR, "corral");
 		try (OrtSession.SessionOptions o = new OrtSession.SessionOptions()) {
 			o.setOptimizationLevel(OrtSession.SessionOptions.OptLevel.ALL_OPT);
@@ -46,18 +65,24 @@ public final class OnnxNetwork implements TileNetwork {
 			// idle threads sleep instead of spinning: the instance stage runs on the same cores right after
 			// (no loss of network speed measured: 1.75-1.97 MP/s spinning, 1.78-2.44 not, same run)
 			o.addConfigEntry("session.intra_op.allow_spinning", "0");
-			return new OnnxNetwork(env, env.createSession(OnnxGraph.of(net), o), net.inChannels(), net.head().outputs());
+			return new OnnxNetwork(env, env.createSession(graph, o), net.inChannels(), net.head().outputs(), int8);
 		}
 	}
 
 	@Override
 	public float[] probabilities(float[] inputs, int n, int h, int w) {
+		return run(inputs, n, h, w, null);
+	}
+
+	/** As {@link #probabilities}; each output named in {@code also} is handed to it (for {@link ActivationRanges}). */
+	float[] run(float[] inputs, int n, int h, int w, java.util.function.BiConsumer<String, FloatBuffer> also) {
 		if (inputs.length != (long) n * channels * h * w) throw new IllegalArgumentException("inputs hold " + inputs.length + " values, not " + n + "x" + channels + "x" + h + "x" + w);
 		try (OnnxTensor x = OnnxTensor.createTensor(env, FloatBuffer.wrap(inputs), new long[] {n, channels, h, w});
 			OrtSession.Result r = session.run(Map.of(OnnxGraph.INPUT, x))) {
-			FloatBuffer p = ((OnnxTensor) r.get(0)).getFloatBuffer();
+			FloatBuffer p = ((OnnxTensor) r.get(OnnxGraph.OUTPUT).orElseThrow()).getFloatBuffer();
 			float[] out = new float[n * outputs * h * w];
 			p.get(out);
+			if (also != null) for (var e : r) if (!e.getKey().equals(OnnxGraph.OUTPUT)) also.accept(e.getKey(), ((OnnxTensor) e.getValue()).getFloatBuffer());
 			return out;
 		} catch (OrtException e) {
 			throw new CorralException("The network could not run on a tile of " + w + "x" + h + ": " + e.getMessage());
@@ -66,7 +91,7 @@ public final class OnnxNetwork implements TileNetwork {
 
 	@Override
 	public String engine() {
-		return "ONNX Runtime " + env.getVersion();
+		return "ONNX Runtime " + env.getVersion() + (int8 ? ", 8-bit" : "");
 	}
 
 	@Override

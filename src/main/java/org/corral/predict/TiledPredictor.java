@@ -46,6 +46,36 @@ public final class TiledPredictor implements AutoCloseable {
 		throw new CorralException(ENGINE_PROPERTY + " must be onnx or djl, got '" + e + "'");
 	}
 
+	/** Ranges of the activations ({@link ActivationRanges}): with them, ONNX Runtime runs the network in 8 bits. */
+	private float[] activationRanges;
+	/** System property choosing the precision of masking where the model allows 8 bits: "int8" (default) or "fp32". */
+	public static final String PRECISION_PROPERTY = "corral.precision";
+
+	/**
+	 * The activation ranges of the model (null: none recorded, float); with them and ONNX Runtime the
+	 * network runs in 8 bits unless {@value #PRECISION_PROPERTY} is "fp32". Set before the first prediction.
+	 */
+	public TiledPredictor optActivationRanges(float[] ranges) {
+		if (network != null) throw new IllegalStateException("the network already runs");
+		activationRanges = ranges;
+		return this;
+	}
+
+	static boolean int8Allowed() {
+		String p = System.getProperty(PRECISION_PROPERTY, "int8");
+		if (p.equals("int8")) return true;
+		if (p.equals("fp32")) return false;
+		throw new CorralException(PRECISION_PROPERTY + " must be int8 or fp32, got '" + p + "'");
+	}
+
+	/** Runs the tiles through {@code n} instead (closed with this predictor); tiles as for ONNX Runtime. */
+	TiledPredictor useNetwork(TileNetwork n) {
+		if (network != null) throw new IllegalStateException("the network already runs");
+		network = n;
+		if (tile == ENGINE_DEFAULT) tile = defaultTile(net, Engine.ONNX);
+		return this;
+	}
+
 	/** The engine for the network; set before the first prediction. */
 	public TiledPredictor optEngine(Engine e) {
 		if (network != null) throw new IllegalStateException("the network already runs");
@@ -184,7 +214,8 @@ public final class TiledPredictor implements AutoCloseable {
 		if (folded == null) folded = new FoldedNetwork(net, manager);
 		if (engine == Engine.ONNX) {
 			try {
-				network = OnnxNetwork.of(folded, Integer.getInteger("ai.djl.pytorch.num_threads", 0));
+				int threads = Integer.getInteger("ai.djl.pytorch.num_threads", 0);
+				network = activationRanges != null && int8Allowed() ? OnnxNetwork.int8(folded, activationRanges, threads) : OnnxNetwork.of(folded, threads);
 			} catch (ai.onnxruntime.OrtException | LinkageError e) {
 				if (!fallbackReported) System.err.println("corral: ONNX Runtime is not available here (" + e.getMessage() + "); the network runs in DJL, about 5x slower");
 				fallbackReported = true;

@@ -125,6 +125,8 @@ public final class Learner {
 				}
 			}
 			ModelHeader h = header(prep, run, outputs, nClasses);
+			h.activationRanges = org.corral.predict.ActivationRanges.measure(net, trainer.getManager(),
+				prep.images().stream().map(CropSampler.Prepared::image).toList());
 			// keep the parameters alive after the trainer closes: move them to a manager we hand out
 			NDManager keep = NDManager.newBaseManager();
 			for (var pair : net.getParameters()) pair.getValue().getArray().attach(keep);

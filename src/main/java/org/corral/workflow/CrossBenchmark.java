@@ -70,7 +70,16 @@ public final class CrossBenchmark {
 			: cache.resolve(String.format(Locale.ROOT, "%s-%d-%d-%d-%d.zip", set.getFileName(), learn.size(), s.steps, s.seed, s.asMap().hashCode() & 0xffff));
 		if (file != null && Files.isRegularFile(file)) {
 			log.accept("  model from cache " + file);
-			return ModelRunner.open(file);
+			ModelRunner cached = ModelRunner.open(file);
+			if (cached.header().activationRanges == null) { // a model of an earlier version: ranges measured as learning ends
+				try (ai.djl.ndarray.NDManager m = ai.djl.ndarray.NDManager.newBaseManager()) {
+					List<PlanarImage> seen = new ArrayList<>();
+					for (Path img : learn.keySet()) seen.add(org.corral.image.Normalise.percentiles(ImageFiles.read(img)));
+					cached.header().activationRanges = org.corral.predict.ActivationRanges.measure(cached.net(), m, seen);
+				}
+				ModelFile.write(file, cached.header(), cached.net());
+			}
+			return cached;
 		}
 		Learner.Result r = new Learner(s).learn(Jobs.trainingImages(learn), quiet(log));
 		if (file != null) ModelFile.write(file, r.header(), r.net());
@@ -127,7 +136,8 @@ public final class CrossBenchmark {
 			PlanarImage im = ImageFiles.read(e.getKey());
 			int[] ref = ImageFiles.readLabels(labels.resolve(e.getKey().getFileName()), null);
 			long t0 = System.nanoTime();
-			float[] prob = m.probability(im, m.scaleFor(ModelRunner.medianSide(e.getValue())), null, ModelRunner.BOX_FLIPS);
+			// the boxes' maps as mask-boxes computes them (their tiles only; 8-bit where the model allows)
+			float[] prob = m.boxMaps(im, e.getValue(), m.scaleFor(ModelRunner.medianSide(e.getValue())), null, ModelRunner.BOX_FLIPS)[0];
 			int[] lab = BoxMasks.make(prob, im.width, im.height, e.getValue(), BoxMasks.Options.DEFAULTS).labels();
 			boxS += (System.nanoTime() - t0) / 1e9;
 			boxes.add(Scores.compare(lab, ref));

@@ -91,24 +91,26 @@ public final class SpeedBenchmark {
 		}
 		try (model; NDManager m = NDManager.newBaseManager()) {
 			long flops = model.net().flopsPerPixel();
-			Stage read = new Stage("read"), norm = new Stage("normalise"), flips = new Stage("network, 4 flips (box masks)"),
+			Stage read = new Stage("read"), norm = new Stage("normalise"),
 				inst = new Stage("instance stage (whole image)"), seedStage = new Stage("  of which seeds"), floodStage = new Stage("  of which flooding"),
 				outl = new Stage("outlines"), write = new Stage("writing"), fit = new Stage("box masks, fitted");
 			int djlTile = TiledPredictor.defaultTile(model.net(), TiledPredictor.Engine.DJL);
 			Path tmp = Files.createTempDirectory("corral-speed");
-			try (TiledPredictor one = new TiledPredictor(model.net(), m); TiledPredictor four = new TiledPredictor(model.net(), m).optFlips(4);
-				TiledPredictor big = new TiledPredictor(model.net(), m, djlTile, 32);
-				TiledPredictor djl = new TiledPredictor(model.net(), m).optEngine(TiledPredictor.Engine.DJL)) {
-				// the engine's own tile side, and DJL's beside it, in both engines
-				Stage net = new Stage("network, 1 pass, tiles of " + one.tile()), bigTiles = new Stage("network, 1 pass, tiles of " + djlTile),
-					djlStage = new Stage("network, 1 pass, in DJL");
+			float[] ranges = model.header().activationRanges;
+			try (TiledPredictor one = new TiledPredictor(model.net(), m); TiledPredictor four = new TiledPredictor(model.net(), m).optFlips(4).optActivationRanges(ranges);
+				TiledPredictor fourFloat = new TiledPredictor(model.net(), m).optFlips(4);
+				TiledPredictor djl = new TiledPredictor(model.net(), m, djlTile, 32).optEngine(TiledPredictor.Engine.DJL)) {
+				// whole images in float, box masks as masking runs them (8-bit where the model has ranges) and in float, and DJL
+				boolean int8 = four.network().engine().endsWith("8-bit");
+				Stage net = new Stage("network, 1 pass, tiles of " + one.tile()), flips = new Stage("network, 4 flips (box masks" + (int8 ? ", 8-bit)" : ")")),
+					flipsFloat = new Stage("network, 4 flips, float"), djlStage = new Stage("network, 1 pass, in DJL (tiles of " + djlTile + ")");
 				out.append("network engine: " + one.network().engine() + " (compared: " + djl.network().engine() + ")\n");
 				// the engine prepares its kernels for each new tile shape on first use: one untimed pass each
 				for (Path f : files) {
 					PlanarImage n = Normalise.percentiles(ImageFiles.read(f), model.header().normLow, model.header().normHigh);
 					one.predictMaps(n, null);
 					four.predictMaps(n, null);
-					big.predictMaps(n, null);
+					fourFloat.predictMaps(n, null);
 					djl.predictMaps(n, null);
 				}
 				for (Path f : files) {
@@ -124,8 +126,8 @@ public final class SpeedBenchmark {
 					float[][] maps = one.predictMaps(n, null);
 					net.add(t, mp);
 					t = System.nanoTime();
-					big.predictMaps(n, null);
-					bigTiles.add(t, mp);
+					fourFloat.predictMaps(n, null);
+					flipsFloat.add(t, mp);
 					t = System.nanoTime();
 					djl.predictMaps(n, null);
 					djlStage.add(t, mp);
@@ -164,7 +166,7 @@ public final class SpeedBenchmark {
 				}
 				out.append(String.format(Locale.ROOT, "%d image(s), %.2f MP, network %,d FLOP per pixel%n", files.size(), read.megapixels, flops));
 				out.append(String.format(Locale.ROOT, "%-34s %9s %9s%n", "stage", "seconds", "MP/s"));
-				for (Stage s : List.of(read, norm, net, bigTiles, djlStage, flips, fit, inst, seedStage, floodStage, outl, write))
+				for (Stage s : List.of(read, norm, net, djlStage, flips, flipsFloat, fit, inst, seedStage, floodStage, outl, write))
 					out.append(String.format(Locale.ROOT, "%-34s %9.3f %9.3f%n", s.name, s.seconds, s.megapixels / s.seconds));
 				double gf = flops * net.megapixels * 1e6 / net.seconds / 1e9;
 				out.append(String.format(Locale.ROOT, "network: %.1f GFLOP/s = %.0f %% of the matrix product (image pixels only; tile context not counted)%n", gf, 100 * gf / gemm));

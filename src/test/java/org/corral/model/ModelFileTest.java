@@ -43,6 +43,7 @@ class ModelFileTest {
 		h.counts.continuedFrom = "2026-01-02T03:04:05Z";
 		h.scores.constraintsMet = 0.997;
 		h.scores.parts.put("background", 0.02);
+		h.activationRanges = new float[] {1.5f, 0.25f, 7f};
 		return h;
 	}
 
@@ -73,6 +74,7 @@ class ModelFileTest {
 			assertEquals(0.997, l.header().scores.constraintsMet);
 			assertEquals(0.02, l.header().scores.parts.get("background"));
 			assertTrue(Double.isNaN(l.header().scores.loss), "a score never reported stays unknown");
+			assertArrayEquals(new float[] {1.5f, 0.25f, 7f}, l.header().activationRanges, "the ranges for 8-bit masking travel with the model");
 			assertArrayEquals(before, run(l.net(), m), 1e-6f);
 		}
 	}

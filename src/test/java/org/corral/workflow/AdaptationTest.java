@@ -53,6 +53,10 @@ class AdaptationTest {
 		try (var m = org.corral.predict.ModelRunner.open(dir.resolve("adapted.zip"))) {
 			assertEquals(ModelFile.readHeader(model).created, m.header().counts.continuedFrom, "the adapted model names its start");
 			assertEquals(ModelFile.readHeader(model).objectSize, m.header().objectSize, 1e-9);
+			float[] base = ModelFile.readHeader(model).activationRanges, adapted = m.header().activationRanges;
+			assertEquals(14, base.length, "learning records one activation range per 3x3 convolution, for 8-bit masking");
+			assertEquals(14, adapted.length);
+			assertFalse(java.util.Arrays.equals(base, adapted), "the adapted network's ranges are measured again");
 		}
 	}
 }

@@ -38,6 +38,36 @@ class BoxMapsTest {
 
 	@Test
 	void onlyTheBoxesTilesAreComputedAndTheMasksAreTheSame() {
+		// the tiles are what is compared here: both maps in float (box masks run in 8 bits by default; Int8NetworkTest)
+		System.setProperty(org.corral.predict.TiledPredictor.PRECISION_PROPERTY, "fp32");
+		try {
+			compareTiles();
+		} finally {
+			System.clearProperty(org.corral.predict.TiledPredictor.PRECISION_PROPERTY);
+		}
+	}
+
+	@Test
+	void boxMapsRunInEightBitsWholeImagesInFloat() {
+		Path model = sixStepModel(dir);
+		Path fields = ReferenceData.demo().resolve("fields");
+		List<Box> boxes = BoxFiles.readCsv(fields.resolve("boxes.csv")).get("seedcoat-field-01.tif");
+		PlanarImage raw = ImageFiles.read(fields.resolve("images").resolve("seedcoat-field-01.tif"));
+		try (ModelRunner m = ModelRunner.open(model)) {
+			assertTrue(m.header().activationRanges != null, "learning recorded the activation ranges");
+			float[] whole = m.maps(raw, 1, null, 1)[0], part = m.boxMaps(raw, boxes, 1, null, 1)[0];
+			double diff = 0;
+			int n = 0;
+			for (Box b : boxes)
+				for (int y = b.y(); y < b.y() + b.height(); y++)
+					for (int x = b.x(); x < b.x() + b.width(); x++, n++) diff += Math.abs(whole[y * raw.width + x] - part[y * raw.width + x]);
+			diff /= n;
+			assertTrue(diff > 0, "the box maps come from the 8-bit network, not the float one");
+			assertTrue(diff < 0.01, "8 bits stay close to float inside the boxes: mean difference " + diff);
+		}
+	}
+
+	private void compareTiles() {
 		Path model = sixStepModel(dir);
 		Path fields = ReferenceData.demo().resolve("fields");
 		Map<String, List<Box>> all = BoxFiles.readCsv(fields.resolve("boxes.csv"));

@@ -77,7 +77,7 @@ class CrossCollectionTest {
 				for (var e : sp.mask().entrySet()) {
 					PlanarImage im = ImageFiles.read(e.getKey());
 					int[] ref = ImageFiles.readLabels(b.resolve("labels").resolve(e.getKey().getFileName()), null);
-					float[] prob = m.probability(im, m.scaleFor(ModelRunner.medianSide(e.getValue())), null, ModelRunner.BOX_FLIPS);
+					float[] prob = m.boxMaps(im, e.getValue(), m.scaleFor(ModelRunner.medianSide(e.getValue())), null, ModelRunner.BOX_FLIPS)[0]; // as mask-boxes computes them
 					adapted.add(Scores.compare(BoxMasks.make(prob, im.width, im.height, e.getValue(), BoxMasks.Options.DEFAULTS).labels(), ref));
 					ellipse.add(Scores.compare(Baselines.ellipse(im, e.getValue()), ref));
 				}

@@ -17,7 +17,8 @@ class SpeedBenchmarkTest {
 		LearnSettings s = new LearnSettings();
 		s.steps = 4;
 		String out = SpeedBenchmark.run(Path.of("test-images", "images"), Path.of("test-images", "boxes.csv"), null, s, l -> {});
-		for (String stage : new String[] {"read", "normalise", "network, 1 pass, tiles of 1040", "network, 1 pass, tiles of 352", "network, 1 pass, in DJL", "network, 4 flips (box masks)", "box masks, fitted", "instance stage (whole image)",
+		for (String stage : new String[] {"read", "normalise", "network, 1 pass, tiles of 1040", "network, 1 pass, in DJL (tiles of 352)",
+			"network, 4 flips (box masks, 8-bit)", "network, 4 flips, float", "box masks, fitted", "instance stage (whole image)",
 			"  of which seeds", "  of which flooding", "outlines", "writing"}) {
 			Matcher m = Pattern.compile("(?m)^" + Pattern.quote(stage) + " +([0-9.]+) +([0-9.]+)$").matcher(out);
 			assertTrue(m.find(), "row '" + stage + "' in\n" + out);
