@@ -177,19 +177,23 @@ public final class ModelRunner implements AutoCloseable {
 			return bandTiles;
 		}
 		if (regions == null) {
-			if (predictor == null) predictor = fixedTile > 0 ? new TiledPredictor(net, manager, fixedTile, TiledPredictor.OVERLAP) : new TiledPredictor(net, manager);
+			if (predictor == null) predictor = engineTiles();
 			return predictor;
 		}
 		// box masks run the network in 8 bits where the model has activation ranges; whole images stay in
-		// float: on the cross-collection pairs 8 bits moved the box masks by -0.0008 to +0.0001 but a
+		// float: on the cross-collection pairs 8 bits moved the box masks by -0.0008 to +0.0003 but a
 		// whole-image F1 by -0.006 (README, "Speed")
-		if (boxPredictor == null) boxPredictor = (fixedTile > 0 ? new TiledPredictor(net, manager, fixedTile, TiledPredictor.OVERLAP) : new TiledPredictor(net, manager))
-			.optActivationRanges(header.activationRanges);
+		if (boxPredictor == null) boxPredictor = engineTiles().optActivationRanges(header.activationRanges);
 		if (fixedTile > 0) return boxPredictor;
 		int small = TiledPredictor.defaultTile(net, TiledPredictor.Engine.DJL);
 		if (small >= boxPredictor.tile()) return boxPredictor;
 		if (smallTiles == null) smallTiles = new TiledPredictor(net, manager, small, TiledPredictor.OVERLAP).optActivationRanges(header.activationRanges);
 		return smallTiles.work(w, h, regions) < boxPredictor.work(w, h, regions) ? smallTiles : boxPredictor;
+	}
+
+	/** Tiles of the side {@link #optTile} fixed, else the engine's own. */
+	private TiledPredictor engineTiles() {
+		return fixedTile > 0 ? new TiledPredictor(net, manager, fixedTile, TiledPredictor.OVERLAP) : new TiledPredictor(net, manager);
 	}
 
 	/**

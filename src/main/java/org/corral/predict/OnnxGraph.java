@@ -31,7 +31,7 @@ public final class OnnxGraph {
 	}
 
 	/** With {@code activations}, each 3x3 convolution's ReLU output "relu"k is an output too (for calibration). */
-	public static byte[] of(FoldedNetwork net, boolean activations) {
+	static byte[] of(FoldedNetwork net, boolean activations) {
 		int levels = net.levels();
 		List<FoldedNetwork.Convolution> convs = net.layers();
 		Message graph = new Message().string(2, "corral-unet");
