@@ -116,6 +116,8 @@ public final class Main {
 		Learner.Result r = Jobs.learn(boxed, boxes, s, model, printer(stop), note -> System.out.println("note: " + note));
 		System.out.printf(Locale.ROOT, "model written to %s (%s steps, %.3f s/step, constraints met %.3f)%n", model, r.header().counts.steps,
 			r.header().counts.secondsPerStep, r.header().scores.constraintsMet);
+		System.out.printf(Locale.ROOT, "whole images will be masked at probability %.2f in %d pass(es), chosen on these boxes%n", r.header().imageThreshold,
+			r.header().imageFlips);
 		r.close();
 		return 0;
 	}
@@ -185,9 +187,16 @@ public final class Main {
 		AtomicBoolean stop = cancelOnInterrupt();
 		FolderRun.Report rep;
 		try (ModelRunner m = ModelRunner.open(model)) {
+			System.out.println(wholeImageSettings(m));
 			rep = Jobs.maskImages(files, share, m, out, size, propose, stop::get, System.out::println);
 		}
 		return report(rep);
+	}
+
+	/** What the model says about masking whole images (chosen when it learned; defaults for older models). */
+	static String wholeImageSettings(ModelRunner m) {
+		return String.format(Locale.ROOT, "whole images: objects at probability %.2f, %d network pass(es) per tile%s", m.imageThreshold(), m.imageFlips(),
+			m.imageFlips() > 1 ? " (test-time flips; the model chose them on its boxes)" : "");
 	}
 
 	/** Joins the outputs of a folder run done in shares. */

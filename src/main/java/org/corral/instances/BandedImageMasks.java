@@ -41,6 +41,11 @@ public final class BandedImageMasks {
 	 * @param bandRows   rows per band; an image of at most this many rows is one window, the whole-image run itself
 	 */
 	public static ImageMasks.Result make(MapSource maps, int w, int h, double objectSize, int bandRows, int halo, BooleanSupplier cancelled) {
+		return make(maps, w, h, objectSize, ImageMasks.THRESHOLD, bandRows, halo, cancelled);
+	}
+
+	/** As above, objects where the probability reaches {@code threshold}. */
+	public static ImageMasks.Result make(MapSource maps, int w, int h, double objectSize, double threshold, int bandRows, int halo, BooleanSupplier cancelled) {
 		if (bandRows < 1 || halo < 0) throw new IllegalArgumentException("bandRows must be >= 1 and halo >= 0");
 		int[] labels = new int[w * h];
 		List<ImageMasks.ObjectInfo> objects = new ArrayList<>();
@@ -48,7 +53,7 @@ public final class BandedImageMasks {
 			if (cancelled != null && cancelled.getAsBoolean()) throw new CancellationException("masking cancelled");
 			int c1 = Math.min(h, c0 + bandRows), a = Math.max(0, c0 - halo), b = Math.min(h, c1 + halo);
 			float[][] m = maps.rows(a, b);
-			ImageMasks.Result r = ImageMasks.make(m[0], m.length > 1 ? m[1] : null, w, b - a, objectSize, ImageMasks.THRESHOLD, ImageMasks.PROMINENCE, a, h);
+			ImageMasks.Result r = ImageMasks.make(m[0], m.length > 1 ? m[1] : null, w, b - a, objectSize, threshold, ImageMasks.PROMINENCE, a, h);
 			// objects are numbered by their first pixel, whose row is the top of their bounding box
 			int[] id = new int[r.count() + 1];
 			for (ImageMasks.ObjectInfo o : r.objects()) {

@@ -55,6 +55,13 @@ public final class ModelHeader {
 	 * ({@code org.corral.predict.ActivationRanges}); absent in models of earlier versions, which mask in float.
 	 */
 	public float[] activationRanges;
+	/**
+	 * How whole images are masked, chosen on the learning images' boxes when learning ends
+	 * ({@code org.corral.instances.WholeImageSettings}): the probability threshold of objects and the
+	 * test-time flips (1 or 4). Models of earlier versions lack them and mask at 0.5 in one pass.
+	 */
+	public double imageThreshold = 0.5;
+	public int imageFlips = 1;
 	public Map<String, Object> training = new LinkedHashMap<>();
 	public Counts counts = new Counts();
 	public Scores scores = new Scores();

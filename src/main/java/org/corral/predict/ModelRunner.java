@@ -105,6 +105,18 @@ public final class ModelRunner implements AutoCloseable {
 	 */
 	public static final int BOX_FLIPS = 4, IMAGE_FLIPS = 1;
 
+	/** Test-time flips for whole images: the model's choice ({@link ModelHeader#imageFlips}), {@link #IMAGE_FLIPS} when it has none. */
+	public int imageFlips() {
+		int f = header.imageFlips;
+		return f == 1 || f == 2 || f == 4 ? f : IMAGE_FLIPS;
+	}
+
+	/** Probability threshold of whole-image objects: the model's choice ({@link ModelHeader#imageThreshold}), 0.5 when it has none. */
+	public double imageThreshold() {
+		double t = header.imageThreshold;
+		return t > 0 && t < 1 ? t : org.corral.instances.ImageMasks.THRESHOLD;
+	}
+
 	/** Probability map of a raw image, at the image's own size; {@code scale} from {@link #scaleFor}. */
 	public float[] probability(PlanarImage raw, double scale, BooleanSupplier cancelled) {
 		return probability(raw, scale, cancelled, IMAGE_FLIPS);

@@ -168,6 +168,20 @@ public final class TiledPredictor implements AutoCloseable {
 	 * tiles are laid out as for the whole image, so what is computed equals the whole-image maps.
 	 */
 	public float[][] predictMaps(PlanarImage im, java.util.List<int[]> regions, BooleanSupplier cancelled) {
+		return predictMaps(im, regions, null, cancelled);
+	}
+
+	/**
+	 * With flips: {the maps of the first, unmirrored pass alone (what one pass gives), the maps
+	 * averaged over every flip}, for the price of the flips.
+	 */
+	public float[][][] predictMapsFirstAndAll(PlanarImage im, BooleanSupplier cancelled) {
+		float[][] first = new float[net.outputs()][im.width * im.height];
+		float[][] all = predictMaps(im, null, first, cancelled);
+		return new float[][][] {flips == 1 ? all : first, all};
+	}
+
+	private float[][] predictMaps(PlanarImage im, java.util.List<int[]> regions, float[][] first, BooleanSupplier cancelled) {
 		if (im.nChannels() != net.inChannels())
 			throw new CorralException("The model expects " + net.inChannels() + " channel(s), the image has " + im.nChannels());
 		int w = im.width, h = im.height;
@@ -190,18 +204,24 @@ public final class TiledPredictor implements AutoCloseable {
 				for (int f = 0; f < flips; f++) {
 					for (int k = 0; k < c; k++) mirror(in, k * plane, mirrored, k * plane, iw, ih, f);
 					float[] pf = network.probabilities(mirrored, 1, ih, iw);
+					if (f == 0 && first != null) keep(pf, first, tx - ox, ty - oy, tx, ty, cw, ch, iw, w);
 					for (int o = 0; o < no; o++) {
 						mirror(pf, o * plane, back, 0, iw, ih, f);
 						for (int i = 0; i < plane; i++) p[o * plane + i] += back[i] / flips;
 					}
 				}
 			}
-			int dx = tx - ox, dy = ty - oy;
-			for (int o = 0; o < no; o++)
-				for (int y = 0; y < ch; y++)
-					System.arraycopy(p, o * plane + (y + dy) * iw + dx, out[o], (ty + y) * w + tx, cw);
+			keep(p, out, tx - ox, ty - oy, tx, ty, cw, ch, iw, w);
 		}
 		return out;
+	}
+
+	/** Copies the kept part of a tile's maps ({@code p}, planes of {@code iw} wide) into the image's maps. */
+	private static void keep(float[] p, float[][] out, int dx, int dy, int tx, int ty, int cw, int ch, int iw, int w) {
+		int plane = p.length / out.length;
+		for (int o = 0; o < out.length; o++)
+			for (int y = 0; y < ch; y++)
+				System.arraycopy(p, o * plane + (y + dy) * iw + dx, out[o], (ty + y) * w + tx, cw);
 	}
 
 	/**

@@ -127,6 +127,7 @@ public final class Learner {
 			ModelHeader h = header(prep, run, outputs, nClasses);
 			h.activationRanges = org.corral.predict.ActivationRanges.measure(net, trainer.getManager(),
 				prep.images().stream().map(CropSampler.Prepared::image).toList());
+			wholeImageSettings(net, prep.images(), h, trainer.getManager(), progress);
 			// keep the parameters alive after the trainer closes: move them to a manager we hand out
 			NDManager keep = NDManager.newBaseManager();
 			for (var pair : net.getParameters()) pair.getValue().getArray().attach(keep);
@@ -300,25 +301,70 @@ public final class Learner {
 			for (int i = 0; i < prepared.size(); i++) {
 				PlanarImage im = prepared.get(i).image();
 				Supervision sup = prepared.get(i).sup();
-				float[] prob = predictor.predictMaps(im, null)[0];
-				int[] lab = org.corral.instances.BoxMasks.make(prob, im.width, im.height, sup.boxes,
-					org.corral.instances.BoxMasks.Options.DEFAULTS.withMargin(s.margin)).labels();
-				for (int k = 0; k < sup.boxes.size(); k++) { // an outlined object is its outline
-					Box bx = sup.boxes.get(k);
-					if (!bx.isExact()) continue;
-					for (int y = bx.y(); y < bx.y1(); y++)
-						for (int x = bx.x(); x < bx.x1(); x++) {
-							int q = y * im.width + x;
-							if (bx.inMask(x, y)) lab[q] = k + 1;
-							else if (lab[q] == k + 1) lab[q] = 0;
-						}
-				}
+				int[] lab = boxMaskLabels(predictor.predictMaps(im, null)[0], im, sup);
 				float[] tg = org.corral.instances.DistanceTargets.of(lab, im.width, im.height);
 				float[] wt = new float[tg.length];
 				for (int k = 0; k < wt.length; k++) wt[k] = sup.inBox[k] != 0 || sup.background[k] != 0 ? 1 : 0;
 				sampler.useMaskTargets(i, tg, wt);
 			}
 		}
+	}
+
+	/**
+	 * Learning images (in order) whose pixels count for {@link #wholeImageSettings}, at most this many
+	 * megapixels (but at least one image): the choice costs four network passes over them.
+	 */
+	static final double SETTINGS_MEGAPIXELS = 2.0;
+
+	/**
+	 * Chooses how the model masks whole images ({@link org.corral.instances.WholeImageSettings}) on the
+	 * images it learned from, as learning sees them, against the box masks of their boxes; records the
+	 * choice and every candidate's figure in the header.
+	 */
+	private void wholeImageSettings(UNet net, List<CropSampler.Prepared> prepared, ModelHeader h, NDManager parent, Progress progress) {
+		long t0 = System.nanoTime();
+		List<org.corral.instances.WholeImageSettings.Sample> samples = new ArrayList<>();
+		try (NDManager m = parent.newSubManager();
+			org.corral.predict.TiledPredictor four = new org.corral.predict.TiledPredictor(net, m).optFlips(4)) {
+			double mp = 0;
+			for (CropSampler.Prepared p : prepared) {
+				if (mp >= SETTINGS_MEGAPIXELS) break;
+				PlanarImage im = p.image();
+				mp += im.width * (double) im.height / 1e6;
+				float[][][] maps = four.predictMapsFirstAndAll(im, progress::cancelled);
+				samples.add(new org.corral.instances.WholeImageSettings.Sample(maps[0], maps[1], im.width, im.height, p.sup().boxes,
+					boxMaskLabels(maps[1][0], im, p.sup())));
+			}
+		}
+		var c = org.corral.instances.WholeImageSettings.choose(samples, h.objectSize);
+		h.imageThreshold = c.threshold();
+		h.imageFlips = c.flips();
+		h.training.put("wholeImageMeanAPOnePass", round4(c.onePass()));
+		h.training.put("wholeImageMeanAPFourFlips", round4(c.fourFlips()));
+		h.training.put("wholeImageSettingsSeconds", Math.round((System.nanoTime() - t0) / 1e7) / 100.0);
+	}
+
+	private static double[] round4(double[] a) {
+		double[] r = new double[a.length];
+		for (int i = 0; i < a.length; i++) r[i] = Math.round(a[i] * 1e4) / 1e4;
+		return r;
+	}
+
+	/** The network's masks of the boxes, fitted to them; an outlined object is its outline. */
+	private int[] boxMaskLabels(float[] prob, PlanarImage im, Supervision sup) {
+		int[] lab = org.corral.instances.BoxMasks.make(prob, im.width, im.height, sup.boxes,
+			org.corral.instances.BoxMasks.Options.DEFAULTS.withMargin(s.margin)).labels();
+		for (int k = 0; k < sup.boxes.size(); k++) {
+			Box bx = sup.boxes.get(k);
+			if (!bx.isExact()) continue;
+			for (int y = bx.y(); y < bx.y1(); y++)
+				for (int x = bx.x(); x < bx.x1(); x++) {
+					int q = y * im.width + x;
+					if (bx.inMask(x, y)) lab[q] = k + 1;
+					else if (lab[q] == k + 1) lab[q] = 0;
+				}
+		}
+		return lab;
 	}
 
 	/**

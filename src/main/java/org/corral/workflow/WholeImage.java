@@ -47,9 +47,9 @@ public final class WholeImage {
 	private static Outcome window(ModelRunner model, PlanarImage im, float[][] bounds, double objectSize) {
 		double byCalibration = objectSize > 0 ? 0 : model.scaleForCalibration(im);
 		double scale = objectSize > 0 ? model.scaleFor(objectSize) : byCalibration > 0 ? byCalibration : 1;
-		float[][] maps = model.maps(im, bounds, scale, null, ModelRunner.IMAGE_FLIPS);
+		float[][] maps = model.maps(im, bounds, scale, null, model.imageFlips());
 		double learned = model.header().objectSize;
-		ImageMasks.Result r = instances(maps[0], model.instanceMap(maps), im, learned / scale);
+		ImageMasks.Result r = instances(maps[0], model.instanceMap(maps), im, learned / scale, model.imageThreshold());
 		if (objectSize <= 0 && byCalibration == 0 && r.count() > 0) {
 			// objects cut at probability 0.5 look smaller than the boxes they were learned from: an
 			// estimate near the learned size is not trusted, only a clearly different one
@@ -57,8 +57,8 @@ public final class WholeImage {
 			double s2 = f < ESTIMATE_TOLERANCE && f > 1 / ESTIMATE_TOLERANCE ? 1 : model.scaleFor(measured);
 			if (s2 != 1) {
 				scale = s2;
-				maps = model.maps(im, bounds, scale, null, ModelRunner.IMAGE_FLIPS);
-				r = instances(maps[0], model.instanceMap(maps), im, learned / scale);
+				maps = model.maps(im, bounds, scale, null, model.imageFlips());
+				r = instances(maps[0], model.instanceMap(maps), im, learned / scale, model.imageThreshold());
 			}
 		}
 		return new Outcome(r, maps[0], scale, model.classMaps(maps));
@@ -86,12 +86,12 @@ public final class WholeImage {
 		float[][] classMaps = new float[nClasses][];
 		for (int k = 0; k < nClasses; k++) classMaps[k] = new float[w * h];
 		ImageMasks.Result r = BandedImageMasks.make((y0, y1) -> {
-			float[][] maps = model.maps(im.rows(y0, y1), bounds, s, null, ModelRunner.IMAGE_FLIPS);
+			float[][] maps = model.maps(im.rows(y0, y1), bounds, s, null, model.imageFlips());
 			float[][] cm = model.classMaps(maps);
 			for (int k = 0; k < nClasses; k++) System.arraycopy(cm[k], 0, classMaps[k], y0 * w, cm[k].length);
 			float[] inst = model.instanceMap(maps);
 			return inst == null ? new float[][] {maps[0]} : new float[][] {maps[0], inst};
-		}, w, h, size, band, BandedImageMasks.halo(size), null);
+		}, w, h, size, model.imageThreshold(), band, BandedImageMasks.halo(size), null);
 		return new Outcome(r, null, scale, classMaps);
 	}
 
@@ -102,8 +102,8 @@ public final class WholeImage {
 	 */
 	public static final double ESTIMATE_TOLERANCE = 1.6;
 
-	static ImageMasks.Result instances(float[] prob, float[] instanceMap, PlanarImage im, double size) {
-		return ImageMasks.make(prob, instanceMap, im.width, im.height, size, ImageMasks.THRESHOLD, ImageMasks.PROMINENCE);
+	static ImageMasks.Result instances(float[] prob, float[] instanceMap, PlanarImage im, double size, double threshold) {
+		return ImageMasks.make(prob, instanceMap, im.width, im.height, size, threshold, ImageMasks.PROMINENCE);
 	}
 
 	public static List<Box> boxes(ImageMasks.Result r) {

@@ -44,6 +44,8 @@ class ModelFileTest {
 		h.scores.constraintsMet = 0.997;
 		h.scores.parts.put("background", 0.02);
 		h.activationRanges = new float[] {1.5f, 0.25f, 7f};
+		h.imageThreshold = 0.4;
+		h.imageFlips = 4;
 		return h;
 	}
 
@@ -75,8 +77,19 @@ class ModelFileTest {
 			assertEquals(0.02, l.header().scores.parts.get("background"));
 			assertTrue(Double.isNaN(l.header().scores.loss), "a score never reported stays unknown");
 			assertArrayEquals(new float[] {1.5f, 0.25f, 7f}, l.header().activationRanges, "the ranges for 8-bit masking travel with the model");
+			assertEquals(0.4, l.header().imageThreshold, "the whole-image threshold travels with the model");
+			assertEquals(4, l.header().imageFlips);
 			assertArrayEquals(before, run(l.net(), m), 1e-6f);
 		}
+	}
+
+	/** A model written before the whole-image settings existed masks as it did: threshold 0.5, one pass. */
+	@Test
+	void aHeaderWithoutWholeImageSettingsKeepsTheDefaults() {
+		ModelHeader h = new com.google.gson.Gson().fromJson("{\"format\":\"corral-model\",\"formatVersion\":1,\"inChannels\":1,\"baseChannels\":4,\"levels\":2}",
+			ModelHeader.class);
+		assertEquals(0.5, h.imageThreshold);
+		assertEquals(1, h.imageFlips);
 	}
 
 	@Test

@@ -29,7 +29,7 @@ class TiledPredictorTest {
 				String n = pair.getKey();
 				float[] v = new float[(int) a.size()];
 				for (int i = 0; i < v.length; i++)
-					v[i] = n.endsWith("runningVar") || n.endsWith("gamma") ? 1f : n.endsWith("runningMean") || n.endsWith("beta") ? 0f : (float) (0.2 * rnd.nextGaussian());
+					v[i] = n.endsWith("runningVar") || n.endsWith("gamma") ? 1f : n.endsWith("runningMean") || n.endsWith("beta") ? 0f : (float) (0.1 * rnd.nextGaussian());
 				a.set(v);
 			}
 			int w = 150, h = 97;
@@ -39,11 +39,52 @@ class TiledPredictorTest {
 			float[] whole = new TiledPredictor(net, m, 1024, 32).predict(im, null);
 			float[] tiled = new TiledPredictor(net, m, 40, 32).predict(im, null);
 			assertEquals(w * h, tiled.length);
+			double lo = 1, hi = 0;
+			for (float q : whole) {
+				lo = Math.min(lo, q);
+				hi = Math.max(hi, q);
+			}
+			org.junit.jupiter.api.Assertions.assertTrue(hi - lo > 0.05, "the map varies (weights at 0.2 saturated it to one value, which hid any seam): " + lo + ".." + hi);
 			double maxDiff = 0;
 			for (int i = 0; i < whole.length; i++) maxDiff = Math.max(maxDiff, Math.abs(whole[i] - tiled[i]));
 			// the receptive field of 3 levels is under 32 px, so the context covers it (batch norm in
 			// inference mode is per pixel); only float rounding differs
 			assertEquals(0, maxDiff, 1e-4);
+		}
+	}
+
+	/** With flips, the first (unmirrored) pass is kept apart and equals a run without flips, tile for tile. */
+	@Test
+	void theFirstOfTheFlipsIsOnePass() {
+		try (NDManager m = NDManager.newBaseManager()) {
+			UNet net = new UNet(1, 16, 3, 2);
+			net.initialize(m, DataType.FLOAT32, new Shape(1, 1, 16, 16));
+			java.util.Random rnd = new java.util.Random(11); // weights at the scale of He initialisation for 3x3x16 inputs, so that the maps do not saturate
+			for (var pair : net.getParameters()) {
+				ai.djl.ndarray.NDArray a = pair.getValue().getArray();
+				String n = pair.getKey();
+				float[] v = new float[(int) a.size()];
+				for (int i = 0; i < v.length; i++)
+					v[i] = n.endsWith("runningVar") || n.endsWith("gamma") ? 1f : n.endsWith("runningMean") || n.endsWith("beta") ? 0f : (float) (0.1 * rnd.nextGaussian());
+				a.set(v);
+			}
+			int w = 90, h = 70;
+			float[] v = new float[w * h];
+			for (int i = 0; i < v.length; i++) v[i] = (float) Math.sin(i * 0.29) * 0.5f + (i / w) / (float) h;
+			PlanarImage im = new PlanarImage(w, h, new float[][] {v});
+			float[][] one = new TiledPredictor(net, m, 40, 32).predictMaps(im, null);
+			float[][] four = new TiledPredictor(net, m, 40, 32).optFlips(4).predictMaps(im, null);
+			float[][][] both = new TiledPredictor(net, m, 40, 32).optFlips(4).predictMapsFirstAndAll(im, null);
+			assertEquals(2, both[0].length);
+			double flipDiff = 0;
+			for (int o = 0; o < 2; o++) {
+				org.junit.jupiter.api.Assertions.assertArrayEquals(one[o], both[0][o], 1e-6f, "map " + o + ": the first pass alone");
+				org.junit.jupiter.api.Assertions.assertArrayEquals(four[o], both[1][o], 1e-6f, "map " + o + ": all four flips");
+				for (int i = 0; i < w * h; i++) flipDiff = Math.max(flipDiff, Math.abs(one[o][i] - four[o][i]));
+			}
+			double lo = 1, hi = 0;
+			for (float q : one[0]) { lo = Math.min(lo, q); hi = Math.max(hi, q); }
+			org.junit.jupiter.api.Assertions.assertTrue(flipDiff > 1e-3, "the flips change the maps of this network: " + flipDiff + " range " + lo + " " + hi);
 		}
 	}
 

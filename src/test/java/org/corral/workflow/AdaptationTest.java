@@ -57,6 +57,13 @@ class AdaptationTest {
 			assertEquals(14, base.length, "learning records one activation range per 3x3 convolution, for 8-bit masking");
 			assertEquals(14, adapted.length);
 			assertFalse(java.util.Arrays.equals(base, adapted), "the adapted network's ranges are measured again");
+			// how it masks whole images is chosen again on the boxes it adapted to, and the figures behind the choice kept
+			var h = m.header();
+			assertTrue(java.util.Arrays.stream(org.corral.instances.WholeImageSettings.THRESHOLDS).anyMatch(t -> t == h.imageThreshold), "threshold " + h.imageThreshold);
+			assertTrue(h.imageFlips == 1 || h.imageFlips == 4, "flips " + h.imageFlips);
+			for (String k : List.of("wholeImageMeanAPOnePass", "wholeImageMeanAPFourFlips")) {
+				assertTrue(h.training.get(k) instanceof List<?> l && l.size() == 4 && l.stream().allMatch(x -> ((Number) x).doubleValue() > 0), k + ": " + h.training.get(k));
+			}
 		}
 	}
 }
