@@ -187,16 +187,10 @@ public final class Main {
 		AtomicBoolean stop = cancelOnInterrupt();
 		FolderRun.Report rep;
 		try (ModelRunner m = ModelRunner.open(model)) {
-			System.out.println(wholeImageSettings(m));
+			System.out.println(m.wholeImageSettings());
 			rep = Jobs.maskImages(files, share, m, out, size, propose, stop::get, System.out::println);
 		}
 		return report(rep);
-	}
-
-	/** What the model says about masking whole images (chosen when it learned; defaults for older models). */
-	static String wholeImageSettings(ModelRunner m) {
-		return String.format(Locale.ROOT, "whole images: objects at probability %.2f, %d network pass(es) per tile%s", m.imageThreshold(), m.imageFlips(),
-			m.imageFlips() > 1 ? " (test-time flips; the model chose them on its boxes)" : "");
 	}
 
 	/** Joins the outputs of a folder run done in shares. */

@@ -41,6 +41,7 @@ public class MasksForWholeImage implements Command {
 		if (model == null) throw new CorralException("Choose a model file");
 		Jobs.WholeImageOutcome o;
 		try (ModelRunner m = ModelRunner.open(model.toPath())) {
+			ij.IJ.log("Corral: " + m.wholeImageSettings());
 			o = Jobs.maskWhole(image, m, side);
 		}
 		labels = ImageJOutputs.labelImage(image.getShortTitle() + "-objects", o.labels(), image);

@@ -100,8 +100,9 @@ public final class ModelRunner implements AutoCloseable {
 
 	/**
 	 * Test-time flips for masks inside boxes: averaging the four mirrored predictions lifted the
-	 * per-object Dice on the held-out histology images from 0.887 to 0.894; it did not help the
-	 * whole-image masks, which therefore use one pass (README, "How the defaults were chosen").
+	 * per-object Dice on the held-out histology images from 0.887 to 0.894 (README, "How the defaults
+	 * were chosen"). Whole images use the model's own choice ({@link #imageFlips()}); one pass for
+	 * models that have none.
 	 */
 	public static final int BOX_FLIPS = 4, IMAGE_FLIPS = 1;
 
@@ -109,6 +110,12 @@ public final class ModelRunner implements AutoCloseable {
 	public int imageFlips() {
 		int f = header.imageFlips;
 		return f == 1 || f == 2 || f == 4 ? f : IMAGE_FLIPS;
+	}
+
+	/** One line for the log: how this model masks whole images. */
+	public String wholeImageSettings() {
+		return String.format(java.util.Locale.ROOT, "whole images: objects at probability %.2f, %d network pass(es) per tile%s", imageThreshold(), imageFlips(),
+			imageFlips() > 1 ? " (test-time flips, which the model chose on its boxes)" : "");
 	}
 
 	/** Probability threshold of whole-image objects: the model's choice ({@link ModelHeader#imageThreshold}), 0.5 when it has none. */
