@@ -18,20 +18,7 @@ class TiledPredictorTest {
 	@Test
 	void tilesDoNotShow() {
 		try (NDManager m = NDManager.newBaseManager()) {
-			UNet net = new UNet(1, 16, 3); // the default width: narrower networks were seen to give NaN in this engine
-			net.setInitializer(new NormalInitializer(0.2f), Parameter.Type.WEIGHT);
-			net.initialize(m, DataType.FLOAT32, new Shape(1, 1, 16, 16));
-			// every parameter set here from a seeded generator, so the network is the same whatever ran
-			// before in this JVM (the engine's own initialisation was seen to leave NaN in a suite run)
-			java.util.Random rnd = new java.util.Random(7);
-			for (var pair : net.getParameters()) {
-				ai.djl.ndarray.NDArray a = pair.getValue().getArray();
-				String n = pair.getKey();
-				float[] v = new float[(int) a.size()];
-				for (int i = 0; i < v.length; i++)
-					v[i] = n.endsWith("runningVar") || n.endsWith("gamma") ? 1f : n.endsWith("runningMean") || n.endsWith("beta") ? 0f : (float) (0.1 * rnd.nextGaussian());
-				a.set(v);
-			}
+			UNet net = seeded(new UNet(1, 16, 3), m, 7); // the default width: narrower networks were seen to give NaN in this engine
 			int w = 150, h = 97;
 			float[] v = new float[w * h];
 			for (int i = 0; i < v.length; i++) v[i] = (float) Math.sin(i * 0.37) * 0.5f + (i % w) / (float) w;
@@ -53,21 +40,31 @@ class TiledPredictorTest {
 		}
 	}
 
+	/**
+	 * The network with every parameter set from a seeded generator, so that it is the same whatever
+	 * ran before in this JVM (the engine's own initialisation was seen to leave NaN in a suite run);
+	 * weights at about the scale of He initialisation for 3x3x16 inputs, so that the maps do not
+	 * saturate (at 0.2 they were one value everywhere, which hides any seam).
+	 */
+	static UNet seeded(UNet net, NDManager m, long seed) {
+		net.initialize(m, DataType.FLOAT32, new Shape(1, net.inChannels(), 16, 16));
+		java.util.Random rnd = new java.util.Random(seed);
+		for (var pair : net.getParameters()) {
+			ai.djl.ndarray.NDArray a = pair.getValue().getArray();
+			String n = pair.getKey();
+			float[] v = new float[(int) a.size()];
+			for (int i = 0; i < v.length; i++)
+				v[i] = n.endsWith("runningVar") || n.endsWith("gamma") ? 1f : n.endsWith("runningMean") || n.endsWith("beta") ? 0f : (float) (0.1 * rnd.nextGaussian());
+			a.set(v);
+		}
+		return net;
+	}
+
 	/** With flips, the first (unmirrored) pass is kept apart and equals a run without flips, tile for tile. */
 	@Test
 	void theFirstOfTheFlipsIsOnePass() {
 		try (NDManager m = NDManager.newBaseManager()) {
-			UNet net = new UNet(1, 16, 3, 2);
-			net.initialize(m, DataType.FLOAT32, new Shape(1, 1, 16, 16));
-			java.util.Random rnd = new java.util.Random(11); // weights at the scale of He initialisation for 3x3x16 inputs, so that the maps do not saturate
-			for (var pair : net.getParameters()) {
-				ai.djl.ndarray.NDArray a = pair.getValue().getArray();
-				String n = pair.getKey();
-				float[] v = new float[(int) a.size()];
-				for (int i = 0; i < v.length; i++)
-					v[i] = n.endsWith("runningVar") || n.endsWith("gamma") ? 1f : n.endsWith("runningMean") || n.endsWith("beta") ? 0f : (float) (0.1 * rnd.nextGaussian());
-				a.set(v);
-			}
+			UNet net = seeded(new UNet(1, 16, 3, 2), m, 11);
 			int w = 90, h = 70;
 			float[] v = new float[w * h];
 			for (int i = 0; i < v.length; i++) v[i] = (float) Math.sin(i * 0.29) * 0.5f + (i / w) / (float) h;
