@@ -8,7 +8,7 @@ import org.corral.score.Scores;
 /**
  * How a model masks whole images, chosen on its own boxed images when learning ends: the probability
  * threshold and the number of test-time flips. The box masks of those images (fitted to their boxes,
- * four flips, as {@code mask-boxes} draws them) stand in for outlines, and each candidate's
+ * four flips, as in {@code mask-boxes} but in float) stand in for outlines, and each candidate's
  * whole-image objects are scored against them by mean AP over IoU 0.5:0.95; objects mostly outside
  * the boxes are not judged (an unboxed object is not an error). Why: a look the network is unsure of
  * leaves the rim of its objects below 0.5 and single passes noisy, which splits and shrinks objects;
