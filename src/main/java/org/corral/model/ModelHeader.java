@@ -62,6 +62,15 @@ public final class ModelHeader {
 	 */
 	public double imageThreshold = 0.5;
 	public int imageFlips = 1;
+	/**
+	 * The noise of the noisiest learning image after normalisation (standard deviation, in units of
+	 * the normalised range; {@code org.corral.image.Normalise#noise}): masking does not let the
+	 * background of an empty or nearly empty field come out noisier. 0 in models of earlier
+	 * versions, which normalise every field by its percentiles alone.
+	 */
+	public double noiseLevel;
+	/** Per channel, the median of the learning images' normalised medians: where their background lay (with {@link #noiseLevel}). */
+	public float[] backgroundLevel;
 	public Map<String, Object> training = new LinkedHashMap<>();
 	public Counts counts = new Counts();
 	public Scores scores = new Scores();

@@ -229,7 +229,7 @@ public final class ModelRunner implements AutoCloseable {
 			throw new CorralException("The model was learned on " + header.inChannels + "-channel images; this image has " + raw.nChannels());
 		int no = Math.max(1, header.outputs);
 		if (constant(raw)) return new float[no][raw.width * raw.height]; // no contrast, no objects
-		PlanarImage norm = bounds != null ? Normalise.with(raw, bounds) : Normalise.percentiles(raw, header.normLow, header.normHigh);
+		PlanarImage norm = Normalise.with(raw, bounds != null ? bounds : normalisationBounds(raw));
 		int sw = scale == 1 ? raw.width : Math.max(1, (int) Math.round(raw.width * scale)), sh = scale == 1 ? raw.height : Math.max(1, (int) Math.round(raw.height * scale));
 		List<int[]> regions = boxes == null ? null : regions(boxes, raw, sw, sh);
 		last = predictorFor(sw, sh, regions, bounds != null).optFlips(flips);
@@ -241,7 +241,7 @@ public final class ModelRunner implements AutoCloseable {
 
 	/** The raw values of {@code raw} that this model's normalisation maps to 0 and 1, per channel. */
 	public float[][] normalisationBounds(org.corral.image.RowReader raw) {
-		return Normalise.bounds(raw, header.normLow, header.normHigh);
+		return Normalise.bounds(raw, header.normLow, header.normHigh, header.noiseLevel, header.backgroundLevel);
 	}
 
 	/** The instance map among {@link #maps}' outputs, or null when the model has none. */

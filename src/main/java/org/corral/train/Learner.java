@@ -245,6 +245,10 @@ public final class Learner {
 		if (nClasses > 0) h.classes = prep.classes();
 		h.normLow = Normalise.LOW;
 		h.normHigh = Normalise.HIGH;
+		// where empty fields are mapped to (Normalise.bounds with a noise level): as the learning images were
+		h.noiseLevel = noiseLevel(prep.images());
+		h.backgroundLevel = backgroundLevel(prep.images());
+		if (from != null) h.noiseLevel = Math.max(h.noiseLevel, from.header().noiseLevel);
 		h.objectSize = from != null ? from.header().objectSize : median(prep.sides());
 		// the pixel size is remembered only when every learning image is calibrated alike
 		List<Double> microns = prep.microns();
@@ -342,6 +346,27 @@ public final class Learner {
 		h.training.put("wholeImageMeanAPOnePass", round4(c.onePass()));
 		h.training.put("wholeImageMeanAPFourFlips", round4(c.fourFlips()));
 		h.training.put("wholeImageSettingsSeconds", Math.round((System.nanoTime() - t0) / 1e7) / 100.0);
+	}
+
+	/** The noise of the noisiest channel of the learning images, as learning sees them (normalised). */
+	static double noiseLevel(List<CropSampler.Prepared> prepared) {
+		double most = 0;
+		for (CropSampler.Prepared p : prepared)
+			for (float sigma : Normalise.noise(p.image())) most = Math.max(most, sigma);
+		return most;
+	}
+
+	/** Per channel, the median over the learning images of each one's median (normalised): where their background lies. */
+	static float[] backgroundLevel(List<CropSampler.Prepared> prepared) {
+		int nc = prepared.get(0).image().nChannels();
+		float[] level = new float[nc];
+		for (int c = 0; c < nc; c++) {
+			float[] medians = new float[prepared.size()];
+			for (int i = 0; i < medians.length; i++) medians[i] = Normalise.medians(prepared.get(i).image())[c];
+			java.util.Arrays.sort(medians);
+			level[c] = medians[medians.length / 2];
+		}
+		return level;
 	}
 
 	private static double[] round4(double[] a) {
