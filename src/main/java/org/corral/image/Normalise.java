@@ -113,7 +113,7 @@ public final class Normalise {
 	/** A channel's finite values at a stride, sorted: the first {@code n} of {@code v}. */
 	private record Sample(float[] v, int n) {
 		Sample {
-			Arrays.sort(v, 0, n);
+			sort(v, n);
 		}
 
 		float at(double percent) {
@@ -203,12 +203,32 @@ public final class Normalise {
 
 	static float sigmaOfDifferences(float[] d, int n) {
 		if (n == 0) return 0;
-		Arrays.sort(d, 0, n);
+		sort(d, n);
 		float med = d[n / 2];
 		if (med > 0) return (float) (1.4826 * med / Math.sqrt(2));
 		double sum = 0;
 		for (int i = 0; i < n; i++) sum += d[i];
 		return (float) (sum / n * Math.sqrt(Math.PI) / 2);
+	}
+
+	/**
+	 * Sorts the first {@code n} values. Images of 8 or 16 bits hold whole numbers from 0 to 65535:
+	 * those are counted instead of compared, in one pass and one of the counts (the same order,
+	 * several times faster than a comparison sort of a million values).
+	 */
+	static void sort(float[] v, int n) {
+		for (int i = 0; i < n; i++) {
+			float x = v[i];
+			if (!(x >= 0 && x <= 65535 && x == (int) x)) {
+				Arrays.sort(v, 0, n);
+				return;
+			}
+		}
+		int[] count = new int[65536];
+		for (int i = 0; i < n; i++) count[(int) v[i]]++;
+		int k = 0;
+		for (int x = 0; x < count.length; x++)
+			for (int c = count[x]; c > 0; c--) v[k++] = x;
 	}
 
 	private static final int SAMPLE_ROWS = 256;

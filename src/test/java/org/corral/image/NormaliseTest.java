@@ -133,4 +133,20 @@ class NormaliseTest {
 			}
 		assertEquals(36, n, "the four sets hold 10 + 10 + 6 + 10 images");
 	}
+
+	@Test
+	void wholeNumbersAreSortedByCountingAsAComparisonSortWould() {
+		java.util.Random r = new java.util.Random(7);
+		float[] ints = new float[5000], mixed = new float[5000];
+		for (int i = 0; i < ints.length; i++) {
+			ints[i] = r.nextInt(65536);
+			mixed[i] = i == 100 ? 0.5f : r.nextInt(300) - (i % 2 == 0 ? 0 : 40); // a fraction and negatives: compared
+		}
+		for (float[] v : new float[][] {ints, mixed}) {
+			float[] want = v.clone();
+			java.util.Arrays.sort(want, 0, 4000);
+			Normalise.sort(v, 4000);
+			org.junit.jupiter.api.Assertions.assertArrayEquals(want, v, "the first 4000 sorted, the rest untouched");
+		}
+	}
 }
