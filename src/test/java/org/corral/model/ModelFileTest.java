@@ -46,6 +46,8 @@ class ModelFileTest {
 		h.activationRanges = new float[] {1.5f, 0.25f, 7f};
 		h.imageThreshold = 0.4;
 		h.imageFlips = 4;
+		h.noiseLevel = 0.007;
+		h.backgroundLevel = new float[] {0.02f, 0.9f};
 		return h;
 	}
 
@@ -79,6 +81,8 @@ class ModelFileTest {
 			assertArrayEquals(new float[] {1.5f, 0.25f, 7f}, l.header().activationRanges, "the ranges for 8-bit masking travel with the model");
 			assertEquals(0.4, l.header().imageThreshold, "the whole-image threshold travels with the model");
 			assertEquals(4, l.header().imageFlips);
+			assertEquals(0.007, l.header().noiseLevel, "the learning images' noise travels with the model");
+			assertArrayEquals(new float[] {0.02f, 0.9f}, l.header().backgroundLevel);
 			assertArrayEquals(before, run(l.net(), m), 1e-6f);
 		}
 	}
@@ -90,6 +94,8 @@ class ModelFileTest {
 			ModelHeader.class);
 		assertEquals(0.5, h.imageThreshold);
 		assertEquals(1, h.imageFlips);
+		assertEquals(0, h.noiseLevel, "no noise level: every field normalised by its percentiles, as before");
+		assertEquals(null, h.backgroundLevel);
 	}
 
 	@Test

@@ -61,6 +61,11 @@ class AdaptationTest {
 			var h = m.header();
 			assertTrue(java.util.Arrays.stream(org.corral.instances.WholeImageSettings.THRESHOLDS).anyMatch(t -> t == h.imageThreshold), "threshold " + h.imageThreshold);
 			assertTrue(h.imageFlips == 1 || h.imageFlips == 4, "flips " + h.imageFlips);
+			// the noise and background of the learning images, for nearly empty fields: never below the start's
+			var start = ModelFile.readHeader(model);
+			assertTrue(start.noiseLevel > 0 && h.noiseLevel >= start.noiseLevel, "noise level " + start.noiseLevel + " -> " + h.noiseLevel);
+			assertEquals(1, h.backgroundLevel.length);
+			assertTrue(h.backgroundLevel[0] >= 0 && h.backgroundLevel[0] < 0.2, "a dark fluorescence background: " + h.backgroundLevel[0]);
 			for (String k : List.of("wholeImageMeanAPOnePass", "wholeImageMeanAPFourFlips")) {
 				assertTrue(h.training.get(k) instanceof List<?> l && l.size() == 4 && l.stream().allMatch(x -> ((Number) x).doubleValue() > 0), k + ": " + h.training.get(k));
 			}
