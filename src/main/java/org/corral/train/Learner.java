@@ -358,11 +358,12 @@ public final class Learner {
 
 	/** Per channel, the median over the learning images of each one's median (normalised): where their background lies. */
 	static float[] backgroundLevel(List<CropSampler.Prepared> prepared) {
-		int nc = prepared.get(0).image().nChannels();
-		float[] level = new float[nc];
-		for (int c = 0; c < nc; c++) {
-			float[] medians = new float[prepared.size()];
-			for (int i = 0; i < medians.length; i++) medians[i] = Normalise.medians(prepared.get(i).image())[c];
+		float[][] perImage = new float[prepared.size()][];
+		for (int i = 0; i < perImage.length; i++) perImage[i] = Normalise.medians(prepared.get(i).image());
+		float[] level = new float[perImage[0].length];
+		for (int c = 0; c < level.length; c++) {
+			float[] medians = new float[perImage.length];
+			for (int i = 0; i < medians.length; i++) medians[i] = perImage[i][c];
 			java.util.Arrays.sort(medians);
 			level[c] = medians[medians.length / 2];
 		}
