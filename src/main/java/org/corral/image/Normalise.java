@@ -60,19 +60,29 @@ public final class Normalise {
 	 * brightfield). {@code noiseLevel} 0 or less: the percentile bounds as they are.
 	 */
 	public static float[][] bounds(RowReader im, double low, double high, double noiseLevel, float[] background) {
-		if (!(noiseLevel > 0) || background == null || background.length != im.nChannels()) return bounds(im, low, high);
+		return range(im, low, high, noiseLevel, background).bounds();
+	}
+
+	/** Bounds per channel ({@code [0]} low, {@code [1]} high), and whether a channel was widened as a nearly empty field's. */
+	public record Range(float[][] bounds, boolean nearlyEmpty) {}
+
+	/** As {@link #bounds(RowReader, double, double, double, float[])}, saying whether the field counted as nearly empty. */
+	public static Range range(RowReader im, double low, double high, double noiseLevel, float[] background) {
+		if (!(noiseLevel > 0) || background == null || background.length != im.nChannels()) return new Range(bounds(im, low, high), false);
 		Scan scan = scan(im, true);
 		Sample[] sample = scan.samples();
 		float[] sigma = scan.sigma();
 		float[][] b = bounds(sample, low, high);
-		if (!sparse(sample, sigma, b)) return b;
+		if (!sparse(sample, sigma, b)) return new Range(b, false);
+		boolean widened = false;
 		for (int c = 0; c < sample.length; c++) {
 			double least = sigma[c] / noiseLevel, med = sample[c].at(50);
 			if (b[1][c] - b[0][c] >= least) continue;
 			b[0][c] = (float) (med - background[c] * least);
 			b[1][c] = (float) (b[0][c] + least);
+			widened = true;
 		}
-		return b;
+		return new Range(b, widened);
 	}
 
 	/** The median of each channel (of the same strided sample as the bounds). */

@@ -241,7 +241,19 @@ public final class ModelRunner implements AutoCloseable {
 
 	/** The raw values of {@code raw} that this model's normalisation maps to 0 and 1, per channel. */
 	public float[][] normalisationBounds(org.corral.image.RowReader raw) {
-		return Normalise.bounds(raw, header.normLow, header.normHigh, header.noiseLevel, header.backgroundLevel);
+		Normalise.Range r = Normalise.range(raw, header.normLow, header.normHigh, header.noiseLevel, header.backgroundLevel);
+		lastNearlyEmpty = r.nearlyEmpty();
+		return r.bounds();
+	}
+
+	private volatile boolean lastNearlyEmpty;
+
+	/**
+	 * Whether the image last normalised counted as a nearly empty field, mapped as the learning
+	 * images were instead of by its percentiles ({@link Normalise#range}): for the log of a job.
+	 */
+	public boolean lastNearlyEmpty() {
+		return lastNearlyEmpty;
 	}
 
 	/** The instance map among {@link #maps}' outputs, or null when the model has none. */

@@ -243,7 +243,7 @@ public final class Jobs {
 				List<Box> boxes = boxed.get(img);
 				BoxMaskOutcome o = maskBoxes(imp, boxes, m, options);
 				writeOutputs(outDir, b, imp, o, boxes);
-				return String.format(Locale.ROOT, "%s: %d boxes masked in %.2f s", img.getFileName(), boxes.size(), (System.nanoTime() - t0) / 1e9);
+				return String.format(Locale.ROOT, "%s: %d boxes masked in %.2f s%s", img.getFileName(), boxes.size(), (System.nanoTime() - t0) / 1e9, nearlyEmptyNote(m));
 			});
 		if (share.isAll()) FolderMerge.writeObjects(outDir);
 		return r;
@@ -415,11 +415,16 @@ public final class Jobs {
 			if (propose) RoiSets.writeZip(OutputNames.proposedBoxes(outDir, base), o.proposals());
 			if (o.shown() != null) ImageFiles.savePng(Overlays.outlines(o.shown(), o.labels()[0]), OutputNames.overlay(outDir, base));
 			ImageFiles.saveTiff(ImageFiles.labelImage(base, o.labels(), imp.getWidth(), imp.getHeight(), imp.getCalibration()), OutputNames.labels(outDir, base));
-			return String.format(Locale.ROOT, "%s: %d objects in %.2f s", img.getFileName(), o.count(), (System.nanoTime() - t0) / 1e9);
+			return String.format(Locale.ROOT, "%s: %d objects in %.2f s%s", img.getFileName(), o.count(), (System.nanoTime() - t0) / 1e9, nearlyEmptyNote(model));
 		});
 		if (propose) AtomicFiles.writeString(outDir.resolve(share.fileName(OutputNames.PROPOSED_CSV)), proposals.toString());
 		if (share.isAll()) FolderMerge.writeObjects(outDir);
 		return r;
+	}
+
+	/** Said in the log after an image that counted as a nearly empty field (README, "Empty and nearly empty fields"). */
+	static String nearlyEmptyNote(ModelRunner model) {
+		return model.lastNearlyEmpty() ? " (nearly empty field: normalised as the model's learning images were, not by its percentiles)" : "";
 	}
 
 	/** One object of a whole-image result: its id in the label image, its stack position and its figures. */
