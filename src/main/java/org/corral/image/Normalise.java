@@ -13,9 +13,7 @@ public final class Normalise {
 	private Normalise() {}
 
 	public static PlanarImage percentiles(PlanarImage im, double low, double high) {
-		float[][] out = new float[im.nChannels()][];
-		for (int c = 0; c < im.nChannels(); c++) out[c] = channel(im.channels[c], low, high);
-		return new PlanarImage(im.width, im.height, out);
+		return with(im, bounds(im, low, high));
 	}
 
 	public static PlanarImage percentiles(PlanarImage im) {
@@ -248,11 +246,6 @@ public final class Normalise {
 		return (int) Math.max(1, length / 1_000_000);
 	}
 
-	static float[] bounds(float[] v, double low, double high) {
-		float[][] b = bounds(new PlanarImage(v.length, 1, new float[][] {v}), low, high);
-		return new float[] {b[0][0], b[1][0]};
-	}
-
 	private static float[] fromSorted(float[] s, int n, double low, double high) {
 		float lo = 0, hi = 1;
 		if (n > 0) {
@@ -274,11 +267,6 @@ public final class Normalise {
 		float[][] out = new float[im.nChannels()][];
 		for (int c = 0; c < im.nChannels(); c++) out[c] = apply(im.channels[c], bounds[0][c], bounds[1][c]);
 		return new PlanarImage(im.width, im.height, out);
-	}
-
-	static float[] channel(float[] v, double low, double high) {
-		float[] lh = bounds(v, low, high);
-		return apply(v, lh[0], lh[1]);
 	}
 
 	private static float[] apply(float[] v, float lo, float hi) {
