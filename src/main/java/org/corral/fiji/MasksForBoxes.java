@@ -63,6 +63,7 @@ public class MasksForBoxes implements Command {
 					int n = own.stream().mapToInt(t -> t.boxes().size()).sum();
 					if (n == 0) throw new CorralException("None of the boxes lies on " + image.getTitle());
 					LearnSettings s = Adaptation.settings(LearnFromBoxes.settings(SupervisionSettings.DEFAULT_BAND, 0, false), m, n, 0);
+					s.chooseWholeImageSettings = false; // the adapted model masks these boxes only and is not kept
 					try (Learner.Result r = Adaptation.adapt(m, own, s, new ImageJProgress(false))) {
 						o = Jobs.maskBoxes(image, bs, new ModelRunner(r.header(), r.net(), r.manager()));
 					}
@@ -72,6 +73,7 @@ public class MasksForBoxes implements Command {
 			LearnSettings s = new LearnSettings();
 			s.steps = steps;
 			s.minutes = 0;
+			s.chooseWholeImageSettings = false; // masks these boxes only and is not kept
 			try (Learner.Result r = new Learner(s).learn(Jobs.trainingImages(image, image.getTitle(), bs, f.region(), ij.IJ::log), new ImageJProgress(false))) {
 				o = Jobs.maskBoxes(image, bs, new ModelRunner(r.header(), r.net(), r.manager()));
 			}

@@ -127,7 +127,7 @@ public final class Learner {
 			ModelHeader h = header(prep, run, outputs, nClasses);
 			h.activationRanges = org.corral.predict.ActivationRanges.measure(net, trainer.getManager(),
 				prep.images().stream().map(CropSampler.Prepared::image).toList());
-			wholeImageSettings(net, prep.images(), h, trainer.getManager(), progress);
+			if (s.chooseWholeImageSettings) wholeImageSettings(net, prep.images(), h, trainer.getManager(), progress);
 			// keep the parameters alive after the trainer closes: move them to a manager we hand out
 			NDManager keep = NDManager.newBaseManager();
 			for (var pair : net.getParameters()) pair.getValue().getArray().attach(keep);
@@ -325,6 +325,9 @@ public final class Learner {
 	 * images it learned from, as learning sees them, against the box masks of their boxes; records the
 	 * choice and every candidate's figure in the header.
 	 */
+	/** The header's training key of the one-pass figures behind the whole-image choice (present when it was made). */
+	public static final String WHOLE_IMAGE_ONE_PASS = "wholeImageMeanAPOnePass";
+
 	private void wholeImageSettings(UNet net, List<CropSampler.Prepared> prepared, ModelHeader h, NDManager parent, Progress progress) {
 		long t0 = System.nanoTime();
 		List<org.corral.instances.WholeImageSettings.Sample> samples = new ArrayList<>();
@@ -343,7 +346,7 @@ public final class Learner {
 		var c = org.corral.instances.WholeImageSettings.choose(samples, h.objectSize);
 		h.imageThreshold = c.threshold();
 		h.imageFlips = c.flips();
-		h.training.put("wholeImageMeanAPOnePass", round4(c.onePass()));
+		h.training.put(WHOLE_IMAGE_ONE_PASS, round4(c.onePass()));
 		h.training.put("wholeImageMeanAPFourFlips", round4(c.fourFlips()));
 		h.training.put("wholeImageSettingsSeconds", Math.round((System.nanoTime() - t0) / 1e7) / 100.0);
 	}

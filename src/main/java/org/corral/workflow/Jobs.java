@@ -211,8 +211,10 @@ public final class Jobs {
 				List<TrainingImage> images = trainingImages(boxed, note -> log.accept("note: " + note));
 				int nBoxes = images.stream().mapToInt(t -> t.boxes().size()).sum();
 				if (nBoxes == 0) throw new CorralException("None of the boxes lies inside its image: nothing to learn from");
-				LearnSettings s = base == null ? plan.settings() : Adaptation.settings(plan.settings(), base, nBoxes, plan.steps());
+				LearnSettings s = base == null ? plan.settings().copy() : Adaptation.settings(plan.settings(), base, nBoxes, plan.steps());
 				if (base == null && plan.steps() > 0) s.steps = plan.steps();
+				// a model that is not kept masks only these boxes: how it would mask whole images is not chosen
+				s.chooseWholeImageSettings = plan.saveTo() != null;
 				log.accept(base == null ? "learning from the " + nBoxes + " boxes of these " + images.size() + " image(s), " + s.steps + " steps"
 					: "adapting the model to the " + nBoxes + " boxes of these " + images.size() + " image(s), " + s.steps + " steps (--no-adapt to skip)");
 				long t0 = System.nanoTime();
@@ -257,6 +259,8 @@ public final class Jobs {
 		Integer adaptSteps, adaptBoxes, adaptImages;
 		Long seed;
 		Double adaptSeconds, constraintsMet;
+		/** Whether the adapted model chose how it masks whole images (only when it is kept: --save-adapted). */
+		Boolean wholeImageSettingsChosen;
 
 		RunRecord(Path model, boolean adapt, boolean fromScratch) {
 			this.model = model == null ? null : model.toAbsolutePath().toString();
@@ -272,6 +276,7 @@ public final class Jobs {
 			seed = s.seed;
 			adaptSeconds = seconds;
 			constraintsMet = Double.isNaN(h.scores.constraintsMet) ? null : h.scores.constraintsMet;
+			wholeImageSettingsChosen = h.training.containsKey(org.corral.train.Learner.WHOLE_IMAGE_ONE_PASS);
 		}
 
 		String json() {

@@ -47,6 +47,8 @@ class AdaptationTest {
 			assertTrue(record.contains("\"model\": \"" + model.toAbsolutePath()), record);
 			assertTrue(record.contains("\"adapt\": " + (i < 2)), record);
 			if (i < 2) assertTrue(record.contains("\"adaptSteps\": 15"), record);
+			// a kept adapted model chooses how it masks whole images; one that only masks these boxes skips it
+			if (i < 2) assertTrue(record.contains("\"wholeImageSettingsChosen\": " + (i == 0)), record);
 		}
 		assertArrayEquals(runs[0], runs[1], "same boxes, model, seed and steps: the same label image");
 		assertFalse(java.util.Arrays.equals(runs[0], runs[2]), "adapting changed the masks");
