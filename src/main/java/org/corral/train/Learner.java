@@ -75,8 +75,13 @@ public final class Learner {
 	}
 
 	/** The learning images as learning sees them, and what they hold. */
-	private record Prepared(List<CropSampler.Prepared> images, int channels, int boxes, int outlines, List<String> classes, List<Double> sides,
-		List<Double> microns) {}
+	private record Prepared(List<CropSampler.Prepared> all, int nOriginals, int channels, int boxes, int outlines, List<String> classes, List<Double> sides,
+		List<Double> microns) {
+		/** The learning images as given (without the scale-jitter copies). */
+		List<CropSampler.Prepared> images() {
+			return all.subList(0, nOriginals);
+		}
+	}
 
 	/** What the report and the header need of the run so far. */
 	private static final class Run {
@@ -93,7 +98,7 @@ public final class Learner {
 		Engine.getInstance().setRandomSeed((int) s.seed);
 		SplittableRandom rnd = new SplittableRandom(s.seed);
 		int nClasses = prep.classes().size() < 2 ? 0 : prep.classes().size();
-		CropSampler sampler = new CropSampler(prep.images(), s, rnd, nClasses);
+		CropSampler sampler = new CropSampler(prep.all(), s, rnd, nClasses);
 		boolean instance = from != null ? from.header().hasInstanceMap() : s.instanceMap;
 		int outputs = 1 + (instance ? 1 : 0) + nClasses;
 		UNet net = new UNet(prep.channels(), s.base, s.levels, outputs);
@@ -113,7 +118,7 @@ public final class Learner {
 			for (int step = 1; step <= run.total; step++) {
 				if (progress.cancelled()) throw new CancellationException("learning cancelled at step " + step);
 				double t = tAt(step, run.total);
-				if (instance && step == maskTargetStep(run.total)) maskTargets(net, prep.images(), sampler, trainer.getManager());
+				if (instance && step == maskTargetStep(run.total)) maskTargets(net, prep.all(), sampler, trainer.getManager());
 				step(trainer, sampler, prep.channels(), terms, instance, nClasses, t, step, acc);
 				accN++;
 				trainer.step();
@@ -137,29 +142,49 @@ public final class Learner {
 		}
 	}
 
-	/** Normalises every image and builds its supervision; refuses mixed channels and runs without boxes. */
+	/**
+	 * Normalises every image and builds its supervision; refuses mixed channels and runs without
+	 * boxes. With scale jitter, each image with a box also comes resized by 1 / (1 + j) and 1 + j,
+	 * after the originals: crops are drawn from all of them alike.
+	 */
 	private Prepared prepare(List<TrainingImage> images) {
 		if (images.isEmpty()) throw new CorralException("Nothing to learn from: no images");
 		int nc = images.get(0).image().nChannels();
 		int nBoxes = 0;
 		List<String> classes = classes(images);
 		List<CropSampler.Prepared> prepared = new ArrayList<>();
+		List<TrainingImage> boxed = new ArrayList<>();
 		List<Double> sides = new ArrayList<>(), microns = new ArrayList<>();
 		for (TrainingImage ti : images) {
 			microns.add(ti.image().micronsPerPixel());
 			if (ti.image().nChannels() != nc)
 				throw new CorralException("Image " + ti.name() + " has " + ti.image().nChannels() + " channel(s), the first image " + nc + "; all learning images need the same channels");
-			PlanarImage norm = Normalise.percentiles(ti.image());
-			Supervision sup = s.supervision().forImage(norm, ti.boxes(), ti.region());
-			if (sup.boxes.isEmpty()) continue;
-			nBoxes += sup.boxes.size();
+			CropSampler.Prepared p = prepared(ti, ti.name(), classes);
+			if (p == null) continue;
+			prepared.add(p);
+			boxed.add(ti);
+			nBoxes += p.sup().boxes.size();
 			for (Box b : ti.boxes()) sides.add(b.meanSide()); // as drawn: masking sees boxes drawn alike
-			prepared.add(new CropSampler.Prepared(ti.name(), norm, Resample.mean3(norm), sup, Normalise.bounds(ti.image(), Normalise.LOW, Normalise.HIGH),
-				classes.size() < 2 ? null : classMap(sup, classes)));
 		}
 		if (nBoxes == 0) throw new CorralException("Nothing to learn from: none of the " + images.size() + " image(s) has a box inside it");
 		int nExact = prepared.stream().mapToInt(p -> p.sup().exactCount()).sum();
-		return new Prepared(prepared, nc, nBoxes, nExact, classes, sides, microns);
+		int originals = prepared.size();
+		if (s.scaleJitter > 0)
+			for (double f : new double[] {1 / (1 + s.scaleJitter), 1 + s.scaleJitter})
+				for (TrainingImage ti : boxed) {
+					CropSampler.Prepared p = prepared(ti.scaled(f), ti.name() + " x" + f, classes);
+					if (p != null) prepared.add(p);
+				}
+		return new Prepared(prepared, originals, nc, nBoxes, nExact, classes, sides, microns);
+	}
+
+	/** One image as learning sees it (normalised, smoothed guide, supervision), or null when no box lies inside it. */
+	private CropSampler.Prepared prepared(TrainingImage ti, String name, List<String> classes) {
+		PlanarImage norm = Normalise.percentiles(ti.image());
+		Supervision sup = s.supervision().forImage(norm, ti.boxes(), ti.region());
+		if (sup.boxes.isEmpty()) return null;
+		return new CropSampler.Prepared(name, norm, Resample.mean3(norm), sup, Normalise.bounds(ti.image(), Normalise.LOW, Normalise.HIGH),
+			classes.size() < 2 ? null : classMap(sup, classes));
 	}
 
 	private void checkStart(int nc) {

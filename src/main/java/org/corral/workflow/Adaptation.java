@@ -3,9 +3,6 @@ package org.corral.workflow;
 import java.util.ArrayList;
 import java.util.List;
 
-import org.corral.boxes.Box;
-import org.corral.image.PlanarImage;
-import org.corral.image.Resample;
 import org.corral.predict.ModelRunner;
 import org.corral.train.LearnSettings;
 import org.corral.train.Learner;
@@ -59,21 +56,6 @@ public final class Adaptation {
 
 	/** The image and its boxes (and region) resized so that its boxes look like the learned objects. */
 	static TrainingImage toModelScale(TrainingImage ti, ModelRunner model) {
-		double f = model.scaleFor(ModelRunner.medianSide(ti.boxes()));
-		if (f == 1) return ti;
-		PlanarImage im = ti.image();
-		int w = Math.max(1, (int) Math.round(im.width * f)), h = Math.max(1, (int) Math.round(im.height * f));
-		PlanarImage r = Resample.bilinear(im, w, h);
-		r.pixelWidth = im.pixelWidth / f;
-		r.unit = im.unit;
-		List<Box> boxes = ti.boxes().stream().map(b -> b.scaled(f)).toList();
-		byte[] region = null;
-		if (ti.region() != null) {
-			region = new byte[w * h];
-			for (int y = 0; y < h; y++)
-				for (int x = 0; x < w; x++)
-					region[y * w + x] = ti.region()[Math.min(im.height - 1, (int) (y / f)) * im.width + Math.min(im.width - 1, (int) (x / f))];
-		}
-		return new TrainingImage(ti.name(), r, boxes, region);
+		return ti.scaled(model.scaleFor(ModelRunner.medianSide(ti.boxes())));
 	}
 }
