@@ -63,7 +63,7 @@ public final class Main {
 		  --instance-map on|off  also learn each object's distance to its edge, from the network's own
 		                   box masks, to split touching objects in whole images (default on)
 		  --augment on|off stain, gamma, blur and noise jitter of the crops (default off)
-		  --scale-jitter J also learn each image resized by 1/(1+J) and 1+J (default 0.3; 0 = off)
+		  --scale-jitter J also learn each image resized by 1/(1+J) and 1+J (default 0: off)
 		  --threads N      CPU threads (default: all)
 		""", LearnSettings.DEFAULT_STEPS, LearnSettings.DEFAULT_SEED, SupervisionSettings.DEFAULT_BAND);
 
