@@ -345,14 +345,14 @@ public final class Learner {
 	 */
 	static final double SETTINGS_MEGAPIXELS = 2.0;
 
+	/** The header's training key of the one-pass figures behind the whole-image choice (present when it was made). */
+	public static final String WHOLE_IMAGE_ONE_PASS = "wholeImageMeanAPOnePass";
+
 	/**
 	 * Chooses how the model masks whole images ({@link org.corral.instances.WholeImageSettings}) on the
 	 * images it learned from, as learning sees them, against the box masks of their boxes; records the
 	 * choice and every candidate's figure in the header.
 	 */
-	/** The header's training key of the one-pass figures behind the whole-image choice (present when it was made). */
-	public static final String WHOLE_IMAGE_ONE_PASS = "wholeImageMeanAPOnePass";
-
 	private void wholeImageSettings(UNet net, List<CropSampler.Prepared> prepared, ModelHeader h, NDManager parent, Progress progress) {
 		long t0 = System.nanoTime();
 		List<org.corral.instances.WholeImageSettings.Sample> samples = new ArrayList<>();
