@@ -164,6 +164,7 @@ public final class Main {
 	private static int maskImageJob(String job, String[] argv, boolean help) {
 		if (help) return print("""
 			corral mask-image --images DIR --model FILE --out DIR [--object-size PX] [--propose] [--threads N]
+			corral mask-image --images DIR [--model FILE] --boxes FILE.csv --out DIR [options]
 			  masks every object of every image, no boxes needed: OUT/NAME.labels.tif (one id per object),
 			  OUT/NAME.outlines.zip, OUT/NAME.objects.csv (area, mean probability, confidence, flags),
 			  OUT/NAME.overlay.png. OUT must not be the image folder. Resumable: images already done
@@ -174,18 +175,37 @@ public final class Main {
 			  --part K/N        only share K of N of the images (sorted by name, every N-th from the K-th);
 			                    folder-level files get the share's name (corral-failures.part-K-of-N.csv),
 			                    and corral merge joins them; cluster-script writes the whole SLURM job
+			  --boxes FILE.csv  boxes drawn on some of these images (a few images of a new look): the
+			                    model first continues learning on them as mask-boxes does (without --model
+			                    it learns from them alone), then masks every object of every image;
+			                    OUT/corral-run.json records the model used. Not with --part (adapt once
+			                    with mask-boxes --save-adapted FILE and give the shares that model)
+			  --adapt-steps N, --save-adapted FILE, --seed S, --band W, --margin PX, --all-boxed
+			                    with --boxes, as for mask-boxes
 			  OUT/corral-objects.csv: every image's objects under one header (also written by merge)
 			""");
-		Args a = new Args(job, argv, 1, Set.of("propose"));
+		Args a = new Args(job, argv, 1, Set.of("propose", "all-boxed", "partial"));
 		threads(a);
-		Path images = a.path("images", true), model = a.path("model", true), out = a.path("out", true);
+		Path images = a.path("images", true), boxes = a.path("boxes", false), model = a.path("model", boxes == null), out = a.path("out", true);
 		double size = a.number("object-size", 0, 0, 1e6);
 		boolean propose = a.has("propose");
 		Share share = Share.parse(a.str("part", null));
+		int steps = a.integer("adapt-steps", 0, 1, 1_000_000);
+		Path save = a.path("save-adapted", false);
+		LearnSettings s = boxes == null ? null : settings(a); // learning options only mean something with boxes to learn from
 		a.checkAllUsed();
+		if (boxes == null && (steps > 0 || save != null))
+			throw new CorralException("mask-image: --adapt-steps and --save-adapted need --boxes FILE.csv (the boxes to learn from)");
+		if (boxes != null && !share.isAll())
+			throw new CorralException("mask-image: --boxes with --part would repeat the same learning in every share; adapt once with mask-boxes --save-adapted FILE, then give --model FILE to the shares");
 		List<Path> files = BoxedImages.images(images);
 		if (files.isEmpty()) throw new CorralException("No images in " + images);
 		AtomicBoolean stop = cancelOnInterrupt();
+		if (boxes != null) {
+			Map<Path, List<Box>> boxed = BoxedImages.find(images, boxes);
+			return report(Jobs.maskImages(files, boxed, boxes, model, new Jobs.AdaptPlan(true, steps, save, s), out, size, propose, stop::get, printer(stop),
+				System.out::println));
+		}
 		FolderRun.Report rep;
 		try (ModelRunner m = ModelRunner.open(model)) {
 			System.out.println(m.wholeImageSettings());

@@ -204,32 +204,84 @@ public final class Jobs {
 		if (!plan.adapt() && modelFile == null) throw new CorralException("Give a model file, or let Corral learn from these boxes first (no --no-adapt)");
 		ModelRunner base = modelFile == null ? null : ModelRunner.open(modelFile);
 		try {
-			ModelRunner used = base;
-			Learner.Result adapted = null;
 			RunRecord record = new RunRecord(modelFile, plan.adapt(), base == null);
-			if (plan.adapt()) {
-				List<TrainingImage> images = trainingImages(boxed, note -> log.accept("note: " + note));
-				int nBoxes = images.stream().mapToInt(t -> t.boxes().size()).sum();
-				if (nBoxes == 0) throw new CorralException("None of the boxes lies inside its image: nothing to learn from");
-				LearnSettings s = base == null ? plan.settings().copy() : Adaptation.settings(plan.settings(), base, nBoxes, plan.steps());
-				if (base == null && plan.steps() > 0) s.steps = plan.steps();
-				// a model that is not kept masks only these boxes: how it would mask whole images is not chosen
-				s.chooseWholeImageSettings = plan.saveTo() != null;
-				log.accept(base == null ? "learning from the " + nBoxes + " boxes of these " + images.size() + " image(s), " + s.steps + " steps"
-					: "adapting the model to the " + nBoxes + " boxes of these " + images.size() + " image(s), " + s.steps + " steps (--no-adapt to skip)");
-				long t0 = System.nanoTime();
-				adapted = Adaptation.adapt(base, images, s, progress);
-				record.adapted(adapted.header(), s, (System.nanoTime() - t0) / 1e9);
-				if (plan.saveTo() != null) {
-					ModelFile.write(plan.saveTo(), adapted.header(), adapted.net());
-					record.savedTo = plan.saveTo().toString();
+			// a model that is not kept masks only these boxes: how it would mask whole images is not chosen
+			try (Learner.Result adapted = plan.adapt() ? adapt(base, boxed, plan, plan.saveTo() != null, record, progress, log) : null) {
+				ModelRunner own = adapted == null ? null : new ModelRunner(adapted.header(), adapted.net(), adapted.manager());
+				try {
+					FolderRun.Report r = maskBoxes(allBoxed, boxFile, own == null ? base : own, BoxMasks.Options.DEFAULTS.withMargin(plan.settings().margin), share, outDir,
+						cancelled, log);
+					AtomicFiles.writeString(outDir.resolve(share.fileName(OutputNames.RUN_RECORD)), record.json());
+					return r;
+				} finally {
+					if (own != null) own.close();
 				}
-				used = new ModelRunner(adapted.header(), adapted.net(), adapted.manager());
 			}
-			FolderRun.Report r = maskBoxes(allBoxed, boxFile, used, BoxMasks.Options.DEFAULTS.withMargin(plan.settings().margin), share, outDir, cancelled, log);
-			AtomicFiles.writeString(outDir.resolve(share.fileName(OutputNames.RUN_RECORD)), record.json());
-			if (adapted != null) adapted.close();
-			return r;
+		} finally {
+			if (base != null) base.close();
+		}
+	}
+
+	/**
+	 * Continued learning on the boxes of {@code boxed} (from scratch when {@code base} is null) as
+	 * {@code plan} says, noted in {@code record}; saves the model when the plan asks.
+	 * {@code chooseWholeImage}: let the model choose how it masks whole images (only worth its network
+	 * passes when whole images will be masked with it).
+	 */
+	static Learner.Result adapt(ModelRunner base, Map<Path, List<Box>> boxed, AdaptPlan plan, boolean chooseWholeImage, RunRecord record, Progress progress,
+		Consumer<String> log) {
+		List<TrainingImage> images = trainingImages(boxed, note -> log.accept("note: " + note));
+		int nBoxes = images.stream().mapToInt(t -> t.boxes().size()).sum();
+		if (nBoxes == 0) throw new CorralException("None of the boxes lies inside its image: nothing to learn from");
+		LearnSettings s = base == null ? plan.settings().copy() : Adaptation.settings(plan.settings(), base, nBoxes, plan.steps());
+		if (base == null && plan.steps() > 0) s.steps = plan.steps();
+		s.chooseWholeImageSettings = chooseWholeImage;
+		log.accept(base == null ? "learning from the " + nBoxes + " boxes of these " + images.size() + " image(s), " + s.steps + " steps"
+			: "adapting the model to the " + nBoxes + " boxes of these " + images.size() + " image(s), " + s.steps + " steps (--no-adapt to skip)");
+		long t0 = System.nanoTime();
+		Learner.Result adapted = Adaptation.adapt(base, images, s, progress);
+		try {
+			record.adapted(adapted.header(), s, (System.nanoTime() - t0) / 1e9);
+			if (plan.saveTo() != null) {
+				ModelFile.write(plan.saveTo(), adapted.header(), adapted.net());
+				record.savedTo = plan.saveTo().toString();
+			}
+			return adapted;
+		} catch (RuntimeException e) {
+			adapted.close();
+			throw e;
+		}
+	}
+
+	/**
+	 * Every object of every image, after continued learning on the boxes drawn on some of them
+	 * ({@code boxed}: images of this folder with their boxes; a few boxed images of a new look are
+	 * enough to teach the model that look, and the other images are masked without boxes). Without
+	 * {@code modelFile} the model is learned from these boxes alone. Writes what {@link #maskImages}
+	 * writes, and {@code corral-run.json}, the record of the model used. All images at once only: the
+	 * shares of a cluster run would each repeat the same learning, so they take a model adapted once
+	 * ({@code mask-boxes --save-adapted}).
+	 */
+	public static FolderRun.Report maskImages(List<Path> images, Map<Path, List<Box>> boxed, Path boxFile, Path modelFile, AdaptPlan plan, Path outDir,
+		double objectSize, boolean propose, java.util.function.BooleanSupplier cancelled, Progress progress, Consumer<String> log) {
+		if (boxed.isEmpty()) throw new CorralException("No boxes found for the images to learn from");
+		java.util.Set<Path> folders = new java.util.LinkedHashSet<>();
+		for (Path p : images) folders.add(p.toAbsolutePath().normalize().getParent());
+		OutputNames.checkOutputFolder(outDir, folders, boxFile == null ? List.of() : List.of(boxFile));
+		if (plan.saveTo() != null) {
+			checkModelTarget(plan.saveTo(), images, boxFile);
+			if (modelFile != null) OutputNames.checkOutputFile(plan.saveTo(), "Adapted model file", List.of(modelFile));
+		}
+		ModelRunner base = modelFile == null ? null : ModelRunner.open(modelFile);
+		try {
+			RunRecord record = new RunRecord(modelFile, true, base == null);
+			try (Learner.Result adapted = adapt(base, boxed, plan, true, record, progress, log);
+				ModelRunner used = new ModelRunner(adapted.header(), adapted.net(), adapted.manager())) {
+				log.accept(used.wholeImageSettings());
+				FolderRun.Report r = maskImages(images, Share.ALL, used, outDir, objectSize, propose, cancelled, log);
+				AtomicFiles.writeString(outDir.resolve(OutputNames.RUN_RECORD), record.json());
+				return r;
+			}
 		} finally {
 			if (base != null) base.close();
 		}

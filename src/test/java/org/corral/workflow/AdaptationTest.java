@@ -73,4 +73,51 @@ class AdaptationTest {
 			}
 		}
 	}
+
+	/**
+	 * mask-image with boxes on some of its images (a few boxed images of a new look): it learns from
+	 * them first, then masks every image, the unboxed ones included, with the model it adapted.
+	 */
+	@Test
+	void maskImageLearnsFromTheBoxesOfSomeImagesThenMasksThemAll() throws Exception {
+		Path demo = ReferenceData.demo().toAbsolutePath(), images = demo.resolve("images");
+		Path model = dir.resolve("base.zip");
+		assertEquals(0, Main.run(new String[] {"learn", "--images", images.toString(), "--boxes", demo.resolve("boxes.csv").toString(), "--model", model.toString(), "--steps",
+			"20", "--width", "16", "--minutes", "0"}));
+		List<String> lines = Files.readAllLines(demo.resolve("boxes.csv"));
+		List<String> few = new java.util.ArrayList<>(List.of(lines.get(0)));
+		lines.stream().filter(l -> l.startsWith("seedcoat-01.tif,")).limit(8).forEach(few::add);
+		assertEquals(9, few.size(), "8 boxes of one image");
+		Path boxes = dir.resolve("few.csv");
+		Files.write(boxes, few);
+		Path out = dir.resolve("adapted-out"), saved = dir.resolve("adapted.zip");
+		assertEquals(0, Main.run(new String[] {"mask-image", "--images", images.toString(), "--model", model.toString(), "--boxes", boxes.toString(), "--out", out.toString(),
+			"--adapt-steps", "12", "--save-adapted", saved.toString()}));
+		String record = Files.readString(out.resolve(OutputNames.RUN_RECORD));
+		for (String field : List.of("\"adapt\": true", "\"adaptSteps\": 12", "\"adaptBoxes\": 8", "\"adaptImages\": 1", "\"wholeImageSettingsChosen\": true",
+			"\"savedTo\": \"" + saved))
+			assertTrue(record.contains(field), field + " in " + record);
+		for (int k = 1; k <= 4; k++) assertTrue(Files.isRegularFile(out.resolve("seedcoat-0" + k + ".labels.tif")), "every image is masked, boxed or not: " + k);
+		// the unboxed images were masked with the adapted model, not the one given
+		Path again = dir.resolve("again"), plain = dir.resolve("plain");
+		assertEquals(0, Main.run(new String[] {"mask-image", "--images", images.toString(), "--model", saved.toString(), "--out", again.toString()}));
+		assertEquals(0, Main.run(new String[] {"mask-image", "--images", images.toString(), "--model", model.toString(), "--out", plain.toString()}));
+		int[] adapted = ImageFiles.readLabels(out.resolve("seedcoat-03.labels.tif"), null);
+		assertArrayEquals(ImageFiles.readLabels(again.resolve("seedcoat-03.labels.tif"), null), adapted);
+		assertFalse(java.util.Arrays.equals(ImageFiles.readLabels(plain.resolve("seedcoat-03.labels.tif"), null), adapted), "learning from the boxes changed the masks");
+		// refused before anything is learned or written: shares would each repeat the learning; a model onto an image
+		Path refused = dir.resolve("refused");
+		String[][] bad = {
+			{"--boxes", boxes.toString(), "--part", "1/2"},
+			{"--boxes", boxes.toString(), "--save-adapted", images.resolve("seedcoat-01.tif").toString()},
+			{"--adapt-steps", "5"}}; // learning options without boxes to learn from
+		String[] said = {"would repeat the same learning in every share", "seedcoat-01.tif", "need --boxes"};
+		for (int i = 0; i < bad.length; i++) {
+			List<String> argv = new java.util.ArrayList<>(List.of("mask-image", "--images", images.toString(), "--model", model.toString(), "--out", refused.toString()));
+			argv.addAll(List.of(bad[i]));
+			var e = org.junit.jupiter.api.Assertions.assertThrows(org.corral.CorralException.class, () -> Main.run(argv.toArray(String[]::new)));
+			assertTrue(e.getMessage().contains(said[i]), e.getMessage());
+		}
+		assertFalse(Files.exists(refused), "nothing written");
+	}
 }
