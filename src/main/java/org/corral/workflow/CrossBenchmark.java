@@ -113,6 +113,7 @@ public final class CrossBenchmark {
 					ModelFile.write(cache.resolve("adapted").resolve(a.getFileName() + "-to-" + b.getFileName() + ".zip"), r.header(), r.net());
 				rows.addAll(mask("corral, adapted", adapted, sp.mask(), labels, adaptS, cache, log));
 			}
+			rows.addAll(halfBoxed(base, sp.mask(), labels, s, log));
 		}
 		Scores.Tally box = new Scores.Tally(), ellipse = new Scores.Tally(), otsu = new Scores.Tally();
 		for (var e : sp.mask().entrySet()) {
@@ -151,6 +152,46 @@ public final class CrossBenchmark {
 		return List.of(new Row(name, boxes, learnSeconds + boxS), new Row(name + ", whole", whole, wholeS));
 	}
 
+	/**
+	 * A user of a new look boxes some of its images and masks the rest whole ({@code mask-image
+	 * --boxes}): the model adapts to the boxes of every other masked image (1st, 3rd, ... by name, so
+	 * that a set whose names group its preparations gives boxes of each), and the other half is masked
+	 * whole, next to the same images masked by the model as it was. Rows "half boxed: …, whole (other
+	 * half)"; none when fewer than 2 images are masked.
+	 */
+	static List<Row> halfBoxed(ModelRunner base, Map<Path, List<Box>> images, Path labels, LearnSettings s, Consumer<String> log) {
+		List<Path> names = new ArrayList<>(images.keySet());
+		if (names.size() < 2) return List.of();
+		Map<Path, List<Box>> boxed = new LinkedHashMap<>();
+		List<Path> rest = new ArrayList<>();
+		for (int i = 0; i < names.size(); i++) {
+			if (i % 2 == 0) boxed.put(names.get(i), images.get(names.get(i)));
+			else rest.add(names.get(i));
+		}
+		List<TrainingImage> own = Jobs.trainingImages(boxed);
+		int nBoxes = own.stream().mapToInt(t -> t.boxes().size()).sum();
+		LearnSettings as = Adaptation.settings(s, base, nBoxes, 0);
+		as.chooseWholeImageSettings = true; // these models mask whole images
+		log.accept("  half boxed: adapting " + as.steps + " steps on the " + nBoxes + " boxes of " + boxed.size() + " image(s), masking the other " + rest.size() + " whole");
+		long t0 = System.nanoTime();
+		try (Learner.Result r = Adaptation.adapt(base, own, as, quiet(log)); ModelRunner adapted = new ModelRunner(r.header(), r.net(), r.manager())) {
+			double adaptS = (System.nanoTime() - t0) / 1e9;
+			Row before = whole("half boxed: not adapted, whole (other half)", base, rest, labels, 0);
+			Row after = whole("half boxed: adapted to the boxed half, whole (other half)", adapted, rest, labels, adaptS);
+			log.accept(String.format(Locale.ROOT, "  half boxed, other half whole: F1 %.4f mAP %.4f -> %.4f mAP %.4f", before.tally().f1(0.5), before.tally().meanAP(),
+				after.tally().f1(0.5), after.tally().meanAP()));
+			return List.of(before, after);
+		}
+	}
+
+	static Row whole(String name, ModelRunner m, List<Path> images, Path labels, double seconds) {
+		Scores.Tally t = new Scores.Tally();
+		long t0 = System.nanoTime();
+		for (Path p : images)
+			t.add(Scores.compare(WholeImage.mask(m, ImageFiles.read(p), 0).result().labels(), ImageFiles.readLabels(labels.resolve(p.getFileName()), null)));
+		return new Row(name, t, seconds + (System.nanoTime() - t0) / 1e9);
+	}
+
 	/** Probability maps kept for offline study of the mask stage (with --cache). */
 	static void dump(Path cache, String name, Path image, float[] prob, PlanarImage im) {
 		Path d = cache.resolve("probability").resolve(name.replaceAll("[^a-z]+", "-")).resolve(image.getParent().getParent().getFileName().toString());
@@ -158,10 +199,10 @@ public final class CrossBenchmark {
 	}
 
 	public static String table(String a, String b, List<Row> rows) {
-		StringBuilder sb = new StringBuilder(String.format(Locale.ROOT, "%-30s %-30s %-24s %8s %8s %8s %8s %8s %8s%n", "learned on", "masked", "method", "objDice", "pixDice",
+		StringBuilder sb = new StringBuilder(String.format(Locale.ROOT, "%-30s %-30s %-58s %8s %8s %8s %8s %8s %8s%n", "learned on", "masked", "method", "objDice", "pixDice",
 			"F1@0.5", "meanAP", "mDice", "seconds"));
 		for (Row r : rows)
-			sb.append(String.format(Locale.ROOT, "%-30s %-30s %-24s %8.4f %8.4f %8.4f %8.4f %8.4f %8.1f%n", a, b, r.method(), r.tally().objectDice(), r.tally().pixelDice(),
+			sb.append(String.format(Locale.ROOT, "%-30s %-30s %-58s %8.4f %8.4f %8.4f %8.4f %8.4f %8.1f%n", a, b, r.method(), r.tally().objectDice(), r.tally().pixelDice(),
 				r.tally().f1(0.5), r.tally().meanAP(), r.tally().matchedDice(), r.seconds()));
 		return sb.toString();
 	}

@@ -91,8 +91,16 @@ class AdaptationTest {
 		Path boxes = dir.resolve("few.csv");
 		Files.write(boxes, few);
 		Path out = dir.resolve("adapted-out"), saved = dir.resolve("adapted.zip");
-		assertEquals(0, Main.run(new String[] {"mask-image", "--images", images.toString(), "--model", model.toString(), "--boxes", boxes.toString(), "--out", out.toString(),
-			"--adapt-steps", "12", "--save-adapted", saved.toString()}));
+		var said = new java.io.ByteArrayOutputStream();
+		var stdout = System.out;
+		System.setOut(new java.io.PrintStream(said, true, java.nio.charset.StandardCharsets.UTF_8));
+		try {
+			assertEquals(0, Main.run(new String[] {"mask-image", "--images", images.toString(), "--model", model.toString(), "--boxes", boxes.toString(), "--out",
+				out.toString(), "--adapt-steps", "12", "--save-adapted", saved.toString()}));
+		} finally {
+			System.setOut(stdout);
+		}
+		assertTrue(said.toString(java.nio.charset.StandardCharsets.UTF_8).contains("note: 3 image(s) without boxes are masked with the model adapted"), said.toString());
 		String record = Files.readString(out.resolve(OutputNames.RUN_RECORD));
 		for (String field : List.of("\"adapt\": true", "\"adaptSteps\": 12", "\"adaptBoxes\": 8", "\"adaptImages\": 1", "\"wholeImageSettingsChosen\": true",
 			"\"savedTo\": \"" + saved))
@@ -111,12 +119,12 @@ class AdaptationTest {
 			{"--boxes", boxes.toString(), "--part", "1/2"},
 			{"--boxes", boxes.toString(), "--save-adapted", images.resolve("seedcoat-01.tif").toString()},
 			{"--adapt-steps", "5"}}; // learning options without boxes to learn from
-		String[] said = {"would repeat the same learning in every share", "seedcoat-01.tif", "need --boxes"};
+		String[] message = {"would repeat the same learning in every share", "seedcoat-01.tif", "need --boxes"};
 		for (int i = 0; i < bad.length; i++) {
 			List<String> argv = new java.util.ArrayList<>(List.of("mask-image", "--images", images.toString(), "--model", model.toString(), "--out", refused.toString()));
 			argv.addAll(List.of(bad[i]));
 			var e = org.junit.jupiter.api.Assertions.assertThrows(org.corral.CorralException.class, () -> Main.run(argv.toArray(String[]::new)));
-			assertTrue(e.getMessage().contains(said[i]), e.getMessage());
+			assertTrue(e.getMessage().contains(message[i]), e.getMessage());
 		}
 		assertFalse(Files.exists(refused), "nothing written");
 	}
