@@ -255,8 +255,8 @@ public final class Jobs {
 
 	/**
 	 * Every object of every image, after continued learning on the boxes drawn on some of them
-	 * ({@code boxed}: images of this folder with their boxes; a few boxed images of a new look are
-	 * enough to teach the model that look, and the other images are masked without boxes). Without
+	 * ({@code boxed}: images of this folder with their boxes; boxes of a new look teach the model how
+	 * that look's objects are outlined, and the other images are masked without boxes). Without
 	 * {@code modelFile} the model is learned from these boxes alone. Writes what {@link #maskImages}
 	 * writes, and {@code corral-run.json}, the record of the model used. All images at once only: the
 	 * shares of a cluster run would each repeat the same learning, so they take a model adapted once
