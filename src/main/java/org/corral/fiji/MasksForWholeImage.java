@@ -3,16 +3,26 @@ package org.corral.fiji;
 import ij.ImagePlus;
 
 import java.io.File;
+import java.util.List;
 
 import org.corral.CorralException;
 import org.corral.predict.ModelRunner;
+import org.corral.supervision.SupervisionSettings;
+import org.corral.train.LearnSettings;
+import org.corral.train.Learner;
+import org.corral.train.TrainingImage;
+import org.corral.workflow.Adaptation;
 import org.corral.workflow.Jobs;
 import org.scijava.ItemIO;
 import org.scijava.command.Command;
 import org.scijava.plugin.Parameter;
 import org.scijava.plugin.Plugin;
 
-/** Masks every object of an image nobody boxed, with a model learned from boxes elsewhere. */
+/**
+ * Masks every object of an image, with a model learned from boxes elsewhere; optionally ({@code adapt})
+ * the model first continues learning on the boxes drawn on this image, then masks all its objects,
+ * boxed or not.
+ */
 @Plugin(type = Command.class, menuPath = "Plugins>Corral>" + MasksForWholeImage.TITLE)
 public class MasksForWholeImage implements Command {
 	/** The title in ImageJ's (flat) command table and in macros: prefixed, so no other plugin's title clashes. */
@@ -30,6 +40,10 @@ public class MasksForWholeImage implements Command {
 	@Parameter(label = "Also add the objects as boxes (to correct and learn again)", persist = false)
 	boolean propose = false;
 
+	/** Boxes drawn on this image teach the model how objects of its look are outlined (README, "whole images of a new look"). */
+	@Parameter(label = "First learn from the boxes drawn on this image", persist = false)
+	boolean adapt = false;
+
 	@Parameter(type = ItemIO.OUTPUT)
 	ImagePlus labels;
 
@@ -41,8 +55,21 @@ public class MasksForWholeImage implements Command {
 		if (model == null) throw new CorralException("Choose a model file");
 		Jobs.WholeImageOutcome o;
 		try (ModelRunner m = ModelRunner.open(model.toPath())) {
-			ij.IJ.log("Corral: " + m.wholeImageSettings());
-			o = Jobs.maskWhole(image, m, side);
+			if (adapt) {
+				ImageJBoxes.Found f = ImageJBoxes.of(image);
+				List<TrainingImage> own = Jobs.trainingImages(image, image.getTitle(), f.boxes(), f.region(), ij.IJ::log);
+				int n = own.stream().mapToInt(t -> t.boxes().size()).sum();
+				if (n == 0) throw new CorralException("No boxes on " + image.getTitle() + " to learn from: draw rectangles around some objects, or untick learning first");
+				LearnSettings s = Adaptation.settings(LearnFromBoxes.settings(SupervisionSettings.DEFAULT_BAND, 0, false), m, n, 0);
+				try (Learner.Result r = Adaptation.adapt(m, own, s, new ImageJProgress(false));
+					ModelRunner adapted = new ModelRunner(r.header(), r.net(), r.manager())) {
+					ij.IJ.log("Corral: learned from " + n + " boxes of " + image.getTitle() + " (" + s.steps + " steps); " + adapted.wholeImageSettings());
+					o = Jobs.maskWhole(image, adapted, side);
+				}
+			} else {
+				ij.IJ.log("Corral: " + m.wholeImageSettings());
+				o = Jobs.maskWhole(image, m, side);
+			}
 		}
 		labels = ImageJOutputs.labelImage(image.getShortTitle() + "-objects", o.labels(), image);
 		ImageJOutputs.showOutlines(image, o.outlines(), false);

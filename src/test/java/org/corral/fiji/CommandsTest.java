@@ -1,6 +1,7 @@
 package org.corral.fiji;
 
 import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
 import static org.junit.jupiter.api.Assertions.assertInstanceOf;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
@@ -130,6 +131,27 @@ class CommandsTest {
 		ImagePlus labels = (ImagePlus) m.getOutput("labels");
 		assertTrue(labels.getStatistics().max >= 1);
 		assertTrue(java.util.Arrays.stream(imp.getOverlay().toArray()).allMatch(r -> r.getName().startsWith("mask-")), "boxes removed when not kept");
+	}
+
+	@Test
+	void wholeImageCanFirstLearnFromTheBoxesDrawnOnIt() throws Exception {
+		ImagePlus imp = boxed("seedcoat-04.tif");
+		// a few boxes only: the others are objects the adapted model must find without boxes
+		Overlay few = new Overlay();
+		for (int k = 0; k < 6; k++) few.add(imp.getOverlay().get(k));
+		imp.setOverlay(few);
+		ImagePlus adapted = (ImagePlus) run(MasksForWholeImage.class, Map.of("image", imp, "model", model.toString(), "side", "0", "propose", "false", "adapt", "true"))
+			.getOutput("labels");
+		ImagePlus plain = (ImagePlus) run(MasksForWholeImage.class, Map.of("image", boxed("seedcoat-04.tif"), "model", model.toString(), "side", "0", "propose",
+			"false")).getOutput("labels");
+		assertTrue(adapted.getStatistics().max > 6, "objects found beyond the 6 boxed: " + adapted.getStatistics().max);
+		assertFalse(java.util.Arrays.equals((short[]) adapted.getProcessor().getPixels(), (short[]) plain.getProcessor().getPixels()), "learning from the boxes changed the masks");
+		ImagePlus none = IJ.openImage(ReferenceData.demo().resolve("images").resolve("seedcoat-04.tif").toString());
+		Exception e = org.junit.jupiter.api.Assertions.assertThrows(Exception.class,
+			() -> run(MasksForWholeImage.class, Map.of("image", none, "model", model.toString(), "side", "0", "propose", "false", "adapt", "true")));
+		Throwable cause = e;
+		while (cause.getCause() != null && !(cause instanceof CorralException)) cause = cause.getCause();
+		assertTrue(String.valueOf(cause.getMessage()).contains("No boxes on seedcoat-04.tif"), "message: " + cause.getMessage());
 	}
 
 	@Test
