@@ -3,15 +3,10 @@ package org.corral.fiji;
 import ij.ImagePlus;
 
 import java.io.File;
-import java.util.List;
 
 import org.corral.CorralException;
 import org.corral.predict.ModelRunner;
-import org.corral.supervision.SupervisionSettings;
-import org.corral.train.LearnSettings;
 import org.corral.train.Learner;
-import org.corral.train.TrainingImage;
-import org.corral.workflow.Adaptation;
 import org.corral.workflow.Jobs;
 import org.scijava.ItemIO;
 import org.scijava.command.Command;
@@ -56,14 +51,10 @@ public class MasksForWholeImage implements Command {
 		Jobs.WholeImageOutcome o;
 		try (ModelRunner m = ModelRunner.open(model.toPath())) {
 			if (adapt) {
-				ImageJBoxes.Found f = ImageJBoxes.of(image);
-				List<TrainingImage> own = Jobs.trainingImages(image, image.getTitle(), f.boxes(), f.region(), ij.IJ::log);
-				int n = own.stream().mapToInt(t -> t.boxes().size()).sum();
-				if (n == 0) throw new CorralException("No boxes on " + image.getTitle() + " to learn from: draw rectangles around some objects, or untick learning first");
-				LearnSettings s = Adaptation.settings(LearnFromBoxes.settings(SupervisionSettings.DEFAULT_BAND, 0, false), m, n, 0);
-				try (Learner.Result r = Adaptation.adapt(m, own, s, new ImageJProgress(false));
+				try (Learner.Result r = MasksForBoxes.adaptTo(image, ImageJBoxes.of(image), m, true,
+					"No boxes on " + image.getTitle() + " to learn from: draw rectangles around some objects, or untick learning first");
 					ModelRunner adapted = new ModelRunner(r.header(), r.net(), r.manager())) {
-					ij.IJ.log("Corral: learned from " + n + " boxes of " + image.getTitle() + " (" + s.steps + " steps); " + adapted.wholeImageSettings());
+					ij.IJ.log("Corral: " + adapted.wholeImageSettings());
 					o = Jobs.maskWhole(image, adapted, side);
 				}
 			} else {
