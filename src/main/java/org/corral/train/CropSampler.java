@@ -133,8 +133,9 @@ final class CropSampler {
 				int src = iy * w + ix;
 				srcOf[dst] = inside ? src : -1;
 				if (inside) {
-					bg[dst] = p.sup().background[src];
 					inBox[dst] = p.sup().inBox[src];
+					// unknown ground outside every box: weakly background (LearnSettings.unknownGround)
+					bg[dst] = p.sup().background[src] != 0 ? 1 : inBox[dst] == 0 && (known == null || known[src] == 0) ? (float) settings.unknownGround : 0;
 					if (cls != null) cls[dst] = p.classes()[src];
 					if (known != null && known[src] != 0) {
 						exw[dst] = 1;
@@ -178,7 +179,7 @@ final class CropSampler {
 		if (keepInstanceMap) return crop(ch, bg, ph, pv, cons, cen, cw, ex, exw, cls); // all weights 0
 		// early in learning, the instance map of every box that reaches into the crop is the cone of its
 		// inscribed ellipse (1 at the centre), in the crop's (transformed) frame
-		for (int i = 0; i < cw.length; i++) cw[i] = bg[i];
+		for (int i = 0; i < cw.length; i++) cw[i] = bg[i] == 1 ? 1 : 0; // known background only
 		List<Box> upright = new ArrayList<>();
 		if (turn != null) {
 			if (turned != null) upright.add(turned);
