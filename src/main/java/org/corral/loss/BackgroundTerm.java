@@ -8,7 +8,8 @@ import java.util.Set;
 /**
  * Outside the boxes is background: the mean of -log(1 - p) over known-background pixels ("Bounding
  * boxes for weakly supervised segmentation: Global constraints get close to full supervision", MIDL
- * 2020). Reads the plane {@value #PLANE}: 1 = known background.
+ * 2020), here a weighted mean. Reads the plane {@value #PLANE} of weights: 1 = known background, a
+ * small weight on unknown ground outside every box (LearnSettings.unknownGround), 0 inside boxes.
  */
 public record BackgroundTerm() implements LossTerm {
 	public static final String NAME = "background", PLANE = "background";
