@@ -303,7 +303,7 @@ public final class Main {
 	/** The benchmarks: split, cross-collection, corrections, speed. */
 	private static int benchmarkJob(String job, String[] argv, boolean help) {
 		if (help) return print("corral benchmark --data DIR [--data2 DIR] [--grow 0,2,4,8] [learn options]\n  each DIR is a reference set (images/, labels/, boxes.csv): learn on the first 5 images, mask the other 5;\n  prints the figures of Corral, the box itself and Otsu in the box; with boxes (tight) and without (whole image).\n  --grow LIST  instead: per-object Dice with every box enlarged by each amount, without and with --margin\n"
-			+ "corral benchmark --learn A --mask B[,C...] [--cache DIR]\n  the cross-collection protocol (README)\n"
+			+ "corral benchmark --learn A --mask B[,C...] [--cache DIR] [--adapt-steps N]\n  the cross-collection protocol (README); --adapt-steps: steps of every adaptation (default: the rule of mask-boxes)\n"
 			+ "corral benchmark --corrections SET [--rounds N] [--fraction F]\n  outlines as corrections: per round, the worst-masked F (default 0.1) of the learning images' objects\n  get their reference outlines and learning starts again; per-object Dice of corrected, neighbours, held-out\n"
 			+ "corral benchmark --speed [--images DIR [--boxes FILE.csv]] [--model FILE] [--steps N]\n  where the time goes: learning s/step (" + SPEED_STEPS
 			+ " steps unless --model), then each stage of masking the folder (default test-images/) in MP/s,\n  the network's GFLOP/s against a matrix product measured in the same run, end-to-end rates and peak memory\n");
@@ -351,13 +351,14 @@ public final class Main {
 		if (maskSets.isEmpty()) throw new CorralException("benchmark: --learn needs --mask SET[,SET...]");
 		LearnSettings s = settings(a);
 		int nLearn = a.integer("learn-images", 5, 1, 1000);
+		int adaptSteps = a.integer("adapt-steps", 0, 1, 1_000_000);
 		Path cache = a.path("cache", false);
 		a.checkAllUsed();
 		StringBuilder all = new StringBuilder();
 		for (Path m : maskSets) {
 			System.out.println("== learn " + learnSet.getFileName() + ", mask " + m.getFileName());
 			String t = org.corral.workflow.CrossBenchmark.table(learnSet.getFileName().toString(), m.getFileName().toString(),
-				org.corral.workflow.CrossBenchmark.run(learnSet, m, s, nLearn, cache, System.out::println));
+				org.corral.workflow.CrossBenchmark.run(learnSet, m, s, nLearn, adaptSteps, cache, System.out::println));
 			System.out.print(t);
 			all.append(t);
 		}

@@ -37,7 +37,10 @@ public final class LearnSettings {
 	 * Appearance jitter of the crops beyond gain and offset: stain (RGB), gamma, blur, noise
 	 * ({@link Appearance}). Off by default: measured on the other-look histology (learned on the
 	 * developer histology set) it did not help, per-object Dice 0.881 with it against 0.882 without
-	 * (0.896 against 0.898 adapted); README, "How the defaults were chosen".
+	 * (0.896 against 0.898 adapted). With scale jitter and the unknown ground it lifted that look's
+	 * whole images without its boxes (F1 0.679 to 0.703) but cost the developer histology's (0.749 to
+	 * 0.715) and every figure of both fluorescence pairs; stain jitter alone gave 0.655 (README, "How
+	 * the defaults were chosen").
 	 */
 	public boolean augment = false;
 	/**

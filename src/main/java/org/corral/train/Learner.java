@@ -75,8 +75,8 @@ public final class Learner {
 	}
 
 	/** The learning images as learning sees them, and what they hold. */
-	private record Prepared(List<CropSampler.Prepared> all, int nOriginals, int channels, int boxes, int outlines, List<String> classes, List<Double> sides,
-		List<Double> microns) {
+	private record Prepared(List<CropSampler.Prepared> all, int nOriginals, int[] origin, int channels, int boxes, int outlines, List<String> classes,
+		List<Double> sides, List<Double> microns) {
 		/** The learning images as given (without the scale-jitter copies). */
 		List<CropSampler.Prepared> images() {
 			return all.subList(0, nOriginals);
@@ -118,7 +118,7 @@ public final class Learner {
 			for (int step = 1; step <= run.total; step++) {
 				if (progress.cancelled()) throw new CancellationException("learning cancelled at step " + step);
 				double t = tAt(step, run.total);
-				if (instance && step == maskTargetStep(run.total)) maskTargets(net, prep.all(), sampler, trainer.getManager());
+				if (instance && step == maskTargetStep(run.total)) maskTargets(net, prep, sampler, trainer.getManager());
 				step(trainer, sampler, prep.channels(), terms, instance, nClasses, t, step, acc);
 				accN++;
 				trainer.step();
@@ -169,13 +169,18 @@ public final class Learner {
 		if (nBoxes == 0) throw new CorralException("Nothing to learn from: none of the " + images.size() + " image(s) has a box inside it");
 		int nExact = prepared.stream().mapToInt(p -> p.sup().exactCount()).sum();
 		int originals = prepared.size();
+		List<Integer> origin = new ArrayList<>();
+		for (int j = 0; j < originals; j++) origin.add(j);
 		if (s.scaleJitter > 0)
 			for (double f : new double[] {1 / (1 + s.scaleJitter), 1 + s.scaleJitter})
-				for (TrainingImage ti : boxed) {
+				for (int j = 0; j < originals; j++) {
+					TrainingImage ti = boxed.get(j);
 					CropSampler.Prepared p = prepared(ti.scaled(f), ti.name() + " x" + f, classes);
-					if (p != null) prepared.add(p);
+					if (p == null) continue;
+					prepared.add(p);
+					origin.add(j);
 				}
-		return new Prepared(prepared, originals, nc, nBoxes, nExact, classes, sides, microns);
+		return new Prepared(prepared, originals, origin.stream().mapToInt(Integer::intValue).toArray(), nc, nBoxes, nExact, classes, sides, microns);
 	}
 
 	/** One image as learning sees it (normalised, smoothed guide, supervision), or null when no box lies inside it. */
@@ -318,24 +323,32 @@ public final class Learner {
 	 * The instance output's targets from the network's own masks of the boxes: each image is masked
 	 * with the network as it is, each mask fitted to its box, and the normalised distance of those
 	 * masks ({@link org.corral.instances.DistanceTargets}) becomes the target inside the boxes, 0 on
-	 * known background.
+	 * known background. A scale-jitter copy takes its original's map, resized, fitted to its own
+	 * boxes: one network pass per original instead of 3.3 times its pixels (measured, learning on
+	 * S-BSST265's 10 images: 400 steps 233 s before, 195 s now, peak memory 4.0 GiB before, 3.5 now,
+	 * the same box masks; README).
 	 */
-	private void maskTargets(UNet net, List<CropSampler.Prepared> prepared, CropSampler sampler, NDManager parent) {
+	private void maskTargets(UNet net, Prepared prep, CropSampler sampler, NDManager parent) {
+		List<CropSampler.Prepared> all = prep.all();
+		float[][] maps = new float[prep.nOriginals()][];
 		try (NDManager m = parent.newSubManager()) {
 			// the images as learning sees them, already normalised; one pass each, as whole images are masked
 			// in the learning engine, as learning is: the learned model does not depend on whether ONNX
 			// Runtime loads here, and learning holds no second engine's buffers (measured: the same figures
 			// to the fourth decimal as with ONNX Runtime's tiles, as the targets come from thresholded masks)
 			org.corral.predict.TiledPredictor predictor = new org.corral.predict.TiledPredictor(net, m).optEngine(org.corral.predict.TiledPredictor.Engine.DJL);
-			for (int i = 0; i < prepared.size(); i++) {
-				PlanarImage im = prepared.get(i).image();
-				Supervision sup = prepared.get(i).sup();
-				int[] lab = boxMaskLabels(predictor.predictMaps(im, null)[0], im, sup);
-				float[] tg = org.corral.instances.DistanceTargets.of(lab, im.width, im.height);
-				float[] wt = new float[tg.length];
-				for (int k = 0; k < wt.length; k++) wt[k] = sup.inBox[k] != 0 || sup.background[k] != 0 ? 1 : 0;
-				sampler.useMaskTargets(i, tg, wt);
-			}
+			for (int i = 0; i < maps.length; i++) maps[i] = predictor.predictMaps(all.get(i).image(), null)[0];
+		}
+		for (int i = 0; i < all.size(); i++) {
+			int o = prep.origin()[i];
+			PlanarImage im = all.get(i).image(), original = all.get(o).image();
+			Supervision sup = all.get(i).sup();
+			float[] prob = o == i ? maps[i] : org.corral.image.Resample.bilinear(maps[o], original.width, original.height, im.width, im.height);
+			int[] lab = boxMaskLabels(prob, im, sup);
+			float[] tg = org.corral.instances.DistanceTargets.of(lab, im.width, im.height);
+			float[] wt = new float[tg.length];
+			for (int k = 0; k < wt.length; k++) wt[k] = sup.inBox[k] != 0 || sup.background[k] != 0 ? 1 : 0;
+			sampler.useMaskTargets(i, tg, wt);
 		}
 	}
 

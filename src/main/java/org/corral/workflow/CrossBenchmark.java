@@ -94,7 +94,8 @@ public final class CrossBenchmark {
 		};
 	}
 
-	public static List<Row> run(Path a, Path b, LearnSettings s, int nLearn, Path cache, Consumer<String> log) {
+	/** {@code adaptSteps}: steps of every adaptation (0 = the rule of {@link Adaptation#steps}). */
+	public static List<Row> run(Path a, Path b, LearnSettings s, int nLearn, int adaptSteps, Path cache, Consumer<String> log) {
 		Split sp = split(a, b, nLearn);
 		Path labels = b.resolve("labels");
 		List<Row> rows = new ArrayList<>();
@@ -105,7 +106,7 @@ public final class CrossBenchmark {
 			long t1 = System.nanoTime();
 			List<TrainingImage> own = Jobs.trainingImages(sp.mask());
 			int nBoxes = own.stream().mapToInt(t -> t.boxes().size()).sum();
-			LearnSettings as = Adaptation.settings(s, base, nBoxes, 0);
+			LearnSettings as = Adaptation.settings(s, base, nBoxes, adaptSteps);
 			log.accept("  adapting: " + as.steps + " steps on " + nBoxes + " boxes of " + own.size() + " images");
 			try (Learner.Result r = Adaptation.adapt(base, own, as, quiet(log)); ModelRunner adapted = new ModelRunner(r.header(), r.net(), r.manager())) {
 				double adaptS = (System.nanoTime() - t1) / 1e9;
@@ -113,7 +114,7 @@ public final class CrossBenchmark {
 					ModelFile.write(cache.resolve("adapted").resolve(a.getFileName() + "-to-" + b.getFileName() + ".zip"), r.header(), r.net());
 				rows.addAll(mask("corral, adapted", adapted, sp.mask(), labels, adaptS, cache, log));
 			}
-			rows.addAll(halfBoxed(base, sp.mask(), labels, s, log));
+			rows.addAll(halfBoxed(base, sp.mask(), labels, s, adaptSteps, log));
 		}
 		Scores.Tally box = new Scores.Tally(), ellipse = new Scores.Tally(), otsu = new Scores.Tally();
 		for (var e : sp.mask().entrySet()) {
@@ -159,7 +160,7 @@ public final class CrossBenchmark {
 	 * whole, next to the same images masked by the model as it was. Rows "half boxed: …, whole (other
 	 * half)"; none when fewer than 2 images are masked.
 	 */
-	static List<Row> halfBoxed(ModelRunner base, Map<Path, List<Box>> images, Path labels, LearnSettings s, Consumer<String> log) {
+	static List<Row> halfBoxed(ModelRunner base, Map<Path, List<Box>> images, Path labels, LearnSettings s, int adaptSteps, Consumer<String> log) {
 		List<Path> names = new ArrayList<>(images.keySet());
 		if (names.size() < 2) return List.of();
 		Map<Path, List<Box>> boxed = new LinkedHashMap<>();
@@ -170,7 +171,7 @@ public final class CrossBenchmark {
 		}
 		List<TrainingImage> own = Jobs.trainingImages(boxed);
 		int nBoxes = own.stream().mapToInt(t -> t.boxes().size()).sum();
-		LearnSettings as = Adaptation.settings(s, base, nBoxes, 0);
+		LearnSettings as = Adaptation.settings(s, base, nBoxes, adaptSteps);
 		as.chooseWholeImageSettings = true; // these models mask whole images
 		log.accept("  half boxed: adapting " + as.steps + " steps on the " + nBoxes + " boxes of " + boxed.size() + " image(s), masking the other " + rest.size() + " whole");
 		long t0 = System.nanoTime();

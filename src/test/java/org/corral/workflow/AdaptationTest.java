@@ -26,6 +26,7 @@ class AdaptationTest {
 		assertEquals(Adaptation.MIN_STEPS, Adaptation.steps(3));
 		assertEquals(100, Adaptation.steps(100));
 		assertEquals(Adaptation.MAX_STEPS, Adaptation.steps(5000));
+		assertEquals(120, Adaptation.MAX_STEPS, "the README states the rule: 60 to 120 steps");
 	}
 
 	@Test

@@ -33,7 +33,7 @@ class CrossCollectionTest {
 	/**
 	 * Budgets shorter than the defaults, to keep the suite short: the learned-on model gets 100 steps,
 	 * and adaptation the smallest budget of its default rule ({@link Adaptation#MIN_STEPS}; these sets
-	 * have more than 150 boxes, so the rule would give 150). A weaker model is a harder test of the
+	 * have more than 120 boxes, so the rule would give 120). A weaker model is a harder test of the
 	 * assertion, not an easier one: with 200 and 150 steps every pair cleared the ellipse by 0.04 or more.
 	 */
 	static final int STEPS = 100, ADAPT_STEPS = Adaptation.MIN_STEPS;
