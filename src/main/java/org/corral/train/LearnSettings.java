@@ -54,7 +54,7 @@ public final class LearnSettings {
 	public double scaleJitter = 0.3;
 	/**
 	 * Weight of the background term on ground that is neither inside a box nor known background
-	 * (known background weighs 1; 0 = left unknown, as before this version). Without it the network
+	 * (known background weighs 1; 0 = left out of the loss, as Corral did before this weight existed). Without it the network
 	 * learns the ring around each box as background by its nearness to an object, and ground far
 	 * from every box stays near 0.45: in a sparse invented field a scale-jittered model took it for
 	 * one object covering 13,400 of 20,480 pixels (README). 0.1 keeps the half-boxed BBBC039 test's

@@ -20,9 +20,10 @@ public final class Adaptation {
 
 	/**
 	 * Steps of continued learning: one per box, at least {@value #MIN_STEPS}, at most {@value #MAX_STEPS}.
-	 * The cap keeps adaptation of a folder of 10 images of about 0.5 MP under a minute on 2 cores
-	 * (BBBC039's 10 images, 1,237 boxes: mask-boxes took 65 s end to end with a cap of 150); 120
-	 * steps gave the same box masks as 150 across collections (README, "Measured on the reference sets").
+	 * The cap keeps a folder of 10 images of about 0.5 MP under a minute on 2 cores (BBBC039's 10
+	 * fields of 0.36 MP, 1,237 boxes: mask-boxes end to end 65 s with a cap of 150, 59 s with 120);
+	 * across collections 120 steps gave box masks within 0.0015 of 150's (README, "Measured on the
+	 * reference sets").
 	 */
 	public static final int MIN_STEPS = 60, MAX_STEPS = 120;
 	/** Learning rate of continued learning: half the learning rate from scratch, as the start is good. */
