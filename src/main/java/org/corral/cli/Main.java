@@ -62,12 +62,13 @@ public final class Main {
 		                   are not boxed)
 		  --instance-map on|off  also learn each object's distance to its edge, from the network's own
 		                   box masks, to split touching objects in whole images (default on)
+		  --w-instance W   weight of the instance map in the loss (default %s)
 		  --augment on|off stain, gamma, blur and noise jitter of the crops (default off)
 		  --scale-jitter J also learn each image resized by 1/(1+J) and 1+J (default 0.3; 0 = off)
 		  --unknown-ground W  weight with which ground neither boxed nor next to a box is learned
 		                   as background (default 0.1; 0 = left unknown; known background weighs 1)
 		  --threads N      CPU threads (default: all)
-		""", LearnSettings.DEFAULT_STEPS, LearnSettings.DEFAULT_SEED, SupervisionSettings.DEFAULT_BAND);
+		""", LearnSettings.DEFAULT_STEPS, LearnSettings.DEFAULT_SEED, SupervisionSettings.DEFAULT_BAND, org.corral.loss.LossWeights.INSTANCE);
 
 	public static void main(String[] argv) {
 		int code;
@@ -446,7 +447,7 @@ public final class Main {
 		s.scaleJitter = a.number("scale-jitter", s.scaleJitter, 0, 1);
 		s.unknownGround = a.number("unknown-ground", s.unknownGround, 0, 1);
 		s.weights = new org.corral.loss.LossWeights(a.number("w-band", s.weights.band(), 0, any), a.number("w-fill", s.weights.fill(), 0, any),
-			a.number("w-pair", s.weights.pairwise(), 0, any));
+			a.number("w-pair", s.weights.pairwise(), 0, any), a.number("w-instance", s.weights.instance(), 0, any));
 		if (a.has("all-boxed")) s.background = Supervision.BackgroundMode.FULL;
 		if (a.has("partial")) s.background = Supervision.BackgroundMode.RING; // the default, named for scripts
 		String cen = a.str("instance-map", null);

@@ -31,7 +31,7 @@ public final class BoxLoss {
 		terms.add(new PairwiseTerm(weights.pairwise()));
 		if (outlines) terms.add(CrossEntropyTerm.OUTLINES);
 		terms.add(new ConstraintTerm(weights));
-		if (instanceMap) terms.add(CrossEntropyTerm.INSTANCE_MAP);
+		if (instanceMap) terms.add(CrossEntropyTerm.INSTANCE_MAP.withWeight(weights.instance()));
 		if (classes > 0) terms.add(new ClassTerm());
 		return terms;
 	}

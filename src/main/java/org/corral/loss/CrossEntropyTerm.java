@@ -11,20 +11,26 @@ import java.util.function.Function;
  * target is known (plane {@code known}: 1 = known, 0 = unknown). Two terms have this form; see
  * {@link #OUTLINES} and {@link #INSTANCE_MAP}.
  */
-public record CrossEntropyTerm(String name, String target, String known, Function<Outputs, NDArray> logits) implements LossTerm {
+public record CrossEntropyTerm(String name, String target, String known, Function<Outputs, NDArray> logits, double weight) implements LossTerm {
 	/**
 	 * Pixels known from outlines (corrections), averaged over the outlined pixels alone, so that a
 	 * few corrections weigh as much as all the known background, however many boxes surround them
 	 * (ours; the form of full supervision). Target 1 = object, 0 = background.
 	 */
-	public static final CrossEntropyTerm OUTLINES = new CrossEntropyTerm("outlines", "outline", "outlineWeight", Outputs::object);
+	public static final CrossEntropyTerm OUTLINES = new CrossEntropyTerm("outlines", "outline", "outlineWeight", Outputs::object, 1);
 
 	/**
 	 * The instance map with soft targets in [0, 1]: the regression of a normalised distance map after
 	 * "Segmentation of Nuclei in Histopathology Images by Deep Regression of the Distance Map" (IEEE
-	 * TMI 2019), on targets from the network's own box masks (ours).
+	 * TMI 2019), on targets from the network's own box masks (ours). Weight 1 here; learning uses
+	 * {@link LossWeights#instance} ({@link #withWeight}).
 	 */
-	public static final CrossEntropyTerm INSTANCE_MAP = new CrossEntropyTerm("instance", "instance", "instanceWeight", Outputs::instanceMap);
+	public static final CrossEntropyTerm INSTANCE_MAP = new CrossEntropyTerm("instance", "instance", "instanceWeight", Outputs::instanceMap, 1);
+
+	/** The same term with another weight in the total. */
+	public CrossEntropyTerm withWeight(double w) {
+		return new CrossEntropyTerm(name, target, known, logits, w);
+	}
 
 	@Override
 	public Set<String> needs() {

@@ -147,6 +147,7 @@ public final class LearnSettings {
 		m.put("weightBand", weights.band());
 		m.put("weightFill", weights.fill());
 		m.put("weightPairwise", weights.pairwise());
+		m.put("weightInstance", weights.instance());
 		m.put("tStart", tStart);
 		m.put("tMax", tMax);
 		m.put("tRamp", tRamp);

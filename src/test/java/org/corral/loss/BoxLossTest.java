@@ -86,7 +86,7 @@ class BoxLossTest {
 		for (int i = 0; i < logits.length; i++) logits[i] = (float) r.nextDouble(-2, 2);
 		for (int i = 0; i < w; i++) bg[i] = 1; // top row known background
 		java.util.Arrays.fill(ph, 1);
-		LossWeights weights = new LossWeights(1, 1, 0.5);
+		LossWeights weights = new LossWeights(1, 1, 0.5, 1);
 		List<LossTerm> terms = BoxLoss.terms(weights, false, false, 0);
 		try (NDManager m = NDManager.newBaseManager()) {
 			CropTargets t = new CropTargets(Supervision.builder(w, h).optBand(2).build(List.of(new Box(1, 1, 2, 4, 3))).constraints)
@@ -96,6 +96,29 @@ class BoxLossTest {
 			double expected = v.part("background") + 0.5 * v.part("pairwise") + v.part("constraints");
 			assertEquals(expected, v.total().getFloat(), 1e-5);
 			assertTrue(v.part("met") >= 0 && v.part("met") <= 1);
+		}
+	}
+
+	/**
+	 * The instance map's cross-entropy enters the total with the weight of {@link LossWeights#instance}
+	 * (hand-worked: logits 0 and ln 3 against targets 1 and 0.75 give ln 2 and ln 4 - 0.75 ln 3).
+	 */
+	@Test
+	void theInstanceMapTermCarriesItsWeight() {
+		int h = 1, w = 2;
+		try (NDManager m = NDManager.newBaseManager()) {
+			CropTargets t = new CropTargets(List.of()).optPlane(BackgroundTerm.PLANE, new float[2], 1, h, w).optPlane(PairwiseTerm.HORIZONTAL, new float[1], 1, h, w - 1)
+				.optPlane(PairwiseTerm.VERTICAL, new float[0], 1, h - 1, w)
+				.optPlane(CrossEntropyTerm.INSTANCE_MAP.target(), new float[] {1, 0.75f}, 1, h, w).optPlane(CrossEntropyTerm.INSTANCE_MAP.known(), new float[] {1, 1}, 1, h, w);
+			float[] logits = {0, 0, 0, (float) Math.log(3)}; // object plane, then instance plane
+			double expected = (Math.log(2) + Math.log(4) - 0.75 * Math.log(3)) / 2;
+			for (double weight : new double[] {1, LossWeights.INSTANCE}) {
+				List<LossTerm> terms = BoxLoss.terms(new LossWeights(1, 1, 1, weight), false, true, 0);
+				BoxLoss.Value v = BoxLoss.compute(terms, new Outputs(m.create(logits, new Shape(1, 2, h, w)), true, 0), new Batch(m, List.of(t)), 5);
+				assertEquals(expected, v.part("instance"), 1e-5);
+				assertEquals(v.part("background") + v.part("pairwise") + v.part("constraints") + weight * expected, v.total().getFloat(), 1e-5);
+			}
+			assertEquals(LossWeights.INSTANCE, LossWeights.defaults().instance());
 		}
 	}
 
@@ -134,7 +157,7 @@ class BoxLossTest {
 		for (int i = 0; i < w; i++) bg[i] = 1;
 		java.util.Arrays.fill(ph, 1);
 		java.util.Arrays.fill(pv, 1);
-		List<LossTerm> terms = BoxLoss.terms(new LossWeights(0.7, 0.3, 0.5), false, false, 0);
+		List<LossTerm> terms = BoxLoss.terms(new LossWeights(0.7, 0.3, 0.5, 1), false, false, 0);
 		try (NDManager m = NDManager.newBaseManager(); ai.djl.training.GradientCollector gc = ai.djl.engine.Engine.getInstance().newGradientCollector()) {
 			NDArray x = m.create(logits, new Shape(1, 1, h, w));
 			x.setRequiresGradient(true);
