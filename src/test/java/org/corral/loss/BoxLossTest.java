@@ -112,7 +112,7 @@ class BoxLossTest {
 				.optPlane(CrossEntropyTerm.INSTANCE_MAP.target(), new float[] {1, 0.75f}, 1, h, w).optPlane(CrossEntropyTerm.INSTANCE_MAP.known(), new float[] {1, 1}, 1, h, w);
 			float[] logits = {0, 0, 0, (float) Math.log(3)}; // object plane, then instance plane
 			double expected = (Math.log(2) + Math.log(4) - 0.75 * Math.log(3)) / 2;
-			for (double weight : new double[] {1, LossWeights.INSTANCE}) {
+			for (double weight : new double[] {1, 5}) {
 				List<LossTerm> terms = BoxLoss.terms(new LossWeights(1, 1, 1, weight), false, true, 0);
 				BoxLoss.Value v = BoxLoss.compute(terms, new Outputs(m.create(logits, new Shape(1, 2, h, w)), true, 0), new Batch(m, List.of(t)), 5);
 				assertEquals(expected, v.part("instance"), 1e-5);

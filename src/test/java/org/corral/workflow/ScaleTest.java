@@ -21,13 +21,9 @@ import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.io.TempDir;
 
 /**
- * A model learned on the demo's nuclei must still mask the same nuclei shown 3.5x larger, rescaled to
- * the learned size by a factor asserted exactly. The demo's smooth ellipses generalise across scale
- * well, so rescaling is not asserted to beat masking at the image's own size: at 2.5x the two were
- * within 0.0004, at 3.5x rescaling gained 0.0015 when written, and with the instance map weighted 5
- * (LossWeights.INSTANCE) it lost 0.002 at 3.5x (0.9543 against 0.9563) and 0.001 at 5x (0.9606
- * against 0.9615). What is asserted is the rescaled masks' own quality, 0.94 (was 0.85 while the
- * comparison was asserted).
+ * A model learned on the demo's nuclei must still mask the same nuclei shown 3.5x larger. The demo's smooth
+ * ellipses generalise across scale well (at 2.5x, rescaled and not were within 0.0004 with the instance
+ * map on), so the gain asserted at 3.5x is small (0.0015 when written); the factor itself is asserted exactly.
  * The model learns one size only (no scale jitter): the rescale is for objects outside the sizes learned,
  * and a model learned at 1/1.3, 1 and 1.3x masked these smooth ellipses 0.005 better unscaled (0.9661
  * against 0.9608) than rescaled, since the 3.5x downsampling coarsens their outlines.
@@ -66,9 +62,10 @@ class ScaleTest {
 				whole.add(Scores.compare(WholeImage.mask(m, big, 0).result().labels(), refLabels));
 			}
 		}
-		System.out.printf("%.1fx larger demo objects: per-object Dice %.4f rescaled, %.4f not; whole-image F1 %.4f%n", f, scaled.objectDice(), unscaled.objectDice(),
+		System.out.printf("3.5x larger demo objects: per-object Dice %.4f rescaled, %.4f not; whole-image F1 %.4f%n", scaled.objectDice(), unscaled.objectDice(),
 			whole.f1(0.5));
-		assertTrue(scaled.objectDice() >= 0.94, "rescaled " + scaled.objectDice() + " (at the image's own size " + unscaled.objectDice() + ")");
+		assertTrue(scaled.objectDice() > 0.85, "rescaled " + scaled.objectDice());
+		assertTrue(scaled.objectDice() >= unscaled.objectDice(), "rescaling helps: " + scaled.objectDice() + " vs " + unscaled.objectDice());
 		assertTrue(whole.f1(0.5) > 0.7, "whole image with the scale measured in a first pass: F1 " + whole.f1(0.5));
 	}
 }
