@@ -103,7 +103,10 @@ public final class Learner {
 		int outputs = 1 + (instance ? 1 : 0) + nClasses;
 		UNet net = new UNet(prep.channels(), s.base, s.levels, outputs);
 		if (from != null && instance) sampler.keepInstanceMap(); // until new targets exist
-		List<LossTerm> terms = BoxLoss.terms(s.weights, prep.outlines() > 0, instance, nClasses);
+		// a heavier instance weight from the first step slowed the box masks' learning: it acts only
+		// once the map learns from the box masks (LossWeights.warmUp)
+		List<LossTerm> terms = BoxLoss.terms(s.weights.warmUp(), prep.outlines() > 0, instance, nClasses);
+		List<LossTerm> lateTerms = BoxLoss.terms(s.weights, prep.outlines() > 0, instance, nClasses);
 		Run run = new Run();
 		run.total = s.steps;
 		Model model = Model.newInstance("corral");
@@ -118,7 +121,10 @@ public final class Learner {
 			for (int step = 1; step <= run.total; step++) {
 				if (progress.cancelled()) throw new CancellationException("learning cancelled at step " + step);
 				double t = tAt(step, run.total);
-				if (instance && step == maskTargetStep(run.total)) maskTargets(net, prep, sampler, trainer.getManager());
+				if (instance && step == maskTargetStep(run.total)) {
+					maskTargets(net, prep, sampler, trainer.getManager());
+					terms = lateTerms;
+				}
 				step(trainer, sampler, prep.channels(), terms, instance, nClasses, t, step, acc);
 				accN++;
 				trainer.step();

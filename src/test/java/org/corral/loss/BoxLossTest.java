@@ -122,6 +122,15 @@ class BoxLossTest {
 		}
 	}
 
+	/** Before the instance map has targets from the box masks, a heavier instance weight is held to 1. */
+	@Test
+	void theWarmUpHoldsTheInstanceWeightToOne() {
+		LossWeights heavy = new LossWeights(2, 3, 4, 5), light = new LossWeights(2, 3, 4, 0.5);
+		assertEquals(new LossWeights(2, 3, 4, 1), heavy.warmUp());
+		assertEquals(light, light.warmUp());
+		assertEquals(Math.min(LossWeights.INSTANCE, LossWeights.WARM_UP_INSTANCE), LossWeights.defaults().warmUp().instance());
+	}
+
 	/** A new term (DEVELOPERS.md's example) joins the sum and the reports by its registration alone. */
 	@Test
 	void anAddedTermIsSummedAndReportedByName() {
