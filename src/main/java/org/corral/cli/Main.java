@@ -63,7 +63,8 @@ public final class Main {
 		  --instance-map on|off  also learn each object's distance to its edge, from the network's own
 		                   box masks, to split touching objects in whole images (default on)
 		  --w-instance W   weight of the instance map in the loss once it learns from the network's
-		                   own box masks, from 60 %% of the run (before: at most 1) (default %s)
+		                   own box masks: from 60 %% of the run, and from scratch not before step 240
+		                   (before: at most 1) (default %s)
 		  --augment on|off stain, gamma, blur and noise jitter of the crops (default off)
 		  --scale-jitter J also learn each image resized by 1/(1+J) and 1+J (default 0.3; 0 = off)
 		  --unknown-ground W  weight with which ground neither boxed nor next to a box is learned

@@ -11,18 +11,18 @@ package org.corral.loss;
  */
 public record LossWeights(double band, double fill, double pairwise, double instance) {
 	/**
-	 * The instance map's default weight, 1. With 1 the learned map stays a plateau at about 0.66 of
-	 * its targets' peak inside each nucleus (developer histology, median over objects), and touching
-	 * nuclei meet without a valley deep enough to part them. A heavier weight acts only once the map
-	 * learns from the network's own box masks ({@link #warmUp} before that): weight 5
-	 * (`--w-instance 5`) then keeps the box masks of 400-step runs within 0.0013 of weight 1 on the
-	 * cross-collection protocol and lifts adapted whole images on every pair (F1 +0.016 on average),
-	 * while weight 5 from the first step cost the box masks up to 0.0068. On the suite's shorter runs
-	 * (100-200 steps) the box masks still fell (BBBC039 held-out 0.9527 to 0.9393; weight 3: 0.9432,
-	 * and its nearly empty fields F1 0.957 to 0.865), and a run that the time cap shortens is such a
-	 * run, so 1 stays (README, "How the defaults were chosen").
+	 * The instance map's default weight, 5, acting only once the map learns from the network's own
+	 * box masks and, when learning from scratch, not before step 240
+	 * ({@link org.corral.train.LearnSettings#heavyInstanceFrom}); before that it is 1 ({@link #warmUp}).
+	 * With 1 throughout the learned map stays a plateau at about 0.66 of its targets' peak inside
+	 * each nucleus (developer histology, median over objects), and touching nuclei meet without a
+	 * valley deep enough to part them. Measured at 400 steps on the cross-collection protocol (README,
+	 * "How the defaults were chosen"): box masks within 0.0013 of weight 1; whole images of the
+	 * developer histology without boxes F1 / mean AP 0.749 / 0.299 to 0.775 / 0.317 (seed 2: 0.664 /
+	 * 0.255 to 0.724 / 0.287), adapted whole images up on every pair. Weight 5 from the first step
+	 * cost the box masks up to 0.0068 there and up to 0.033 in runs of 100-200 steps.
 	 */
-	public static final double INSTANCE = 1.0;
+	public static final double INSTANCE = 5.0;
 
 	public static LossWeights defaults() {
 		return new LossWeights(1.0, 1.0, 1.0, INSTANCE);

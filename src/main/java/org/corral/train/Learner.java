@@ -104,7 +104,7 @@ public final class Learner {
 		UNet net = new UNet(prep.channels(), s.base, s.levels, outputs);
 		if (from != null && instance) sampler.keepInstanceMap(); // until new targets exist
 		// a heavier instance weight from the first step slowed the box masks' learning: it acts only
-		// once the map learns from the box masks (LossWeights.warmUp)
+		// once the map learns from the box masks and they have settled (LossWeights.warmUp)
 		List<LossTerm> terms = BoxLoss.terms(s.weights.warmUp(), prep.outlines() > 0, instance, nClasses);
 		List<LossTerm> lateTerms = BoxLoss.terms(s.weights, prep.outlines() > 0, instance, nClasses);
 		Run run = new Run();
@@ -121,10 +121,8 @@ public final class Learner {
 			for (int step = 1; step <= run.total; step++) {
 				if (progress.cancelled()) throw new CancellationException("learning cancelled at step " + step);
 				double t = tAt(step, run.total);
-				if (instance && step == maskTargetStep(run.total)) {
-					maskTargets(net, prep, sampler, trainer.getManager());
-					terms = lateTerms;
-				}
+				if (instance && step == maskTargetStep(run.total)) maskTargets(net, prep, sampler, trainer.getManager());
+				if (instance && terms != lateTerms && step >= heavyInstanceStep(run.total, from != null)) terms = lateTerms;
 				step(trainer, sampler, prep.channels(), terms, instance, nClasses, t, step, acc);
 				accN++;
 				trainer.step();
@@ -323,6 +321,11 @@ public final class Learner {
 
 	static int maskTargetStep(int total) {
 		return Math.max(1, (int) Math.round(MASK_TARGET_FROM * total));
+	}
+
+	/** The step from which a heavier instance weight acts ({@link LearnSettings#heavyInstanceFrom}). */
+	int heavyInstanceStep(int total, boolean continued) {
+		return continued ? maskTargetStep(total) : Math.max(maskTargetStep(total), s.heavyInstanceFrom);
 	}
 
 	/**
