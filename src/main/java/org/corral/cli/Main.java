@@ -73,17 +73,29 @@ public final class Main {
 		""", LearnSettings.DEFAULT_STEPS, LearnSettings.DEFAULT_SEED, SupervisionSettings.DEFAULT_BAND, org.corral.loss.LossWeights.INSTANCE);
 
 	public static void main(String[] argv) {
-		int code;
+		System.exit(exitCode(() -> run(argv), System.err));
+	}
+
+	/**
+	 * Runs a job and turns its outcome into the process's exit code: 0 done, 2 refused with a
+	 * message, 130 cancelled, 1 an internal error (its stack trace printed). The process always
+	 * ends: an uncaught error would otherwise leave the engines' worker threads holding it open,
+	 * and a batch script waiting for ever.
+	 */
+	static int exitCode(java.util.concurrent.Callable<Integer> job, java.io.PrintStream err) {
 		try {
-			code = run(argv);
+			return job.call();
 		} catch (CorralException e) {
-			System.err.println("corral: error: " + e.getMessage());
-			code = 2;
+			err.println("corral: error: " + e.getMessage());
+			return 2;
 		} catch (CancellationException e) {
-			System.err.println("corral: " + e.getMessage() + "; nothing written");
-			code = 130;
+			err.println("corral: " + e.getMessage() + "; nothing written");
+			return 130;
+		} catch (Exception | Error e) {
+			err.println("corral: internal error (please report it with the lines below)");
+			e.printStackTrace(err);
+			return 1;
 		}
-		System.exit(code);
 	}
 
 	public static int run(String[] argv) {

@@ -232,4 +232,19 @@ class BadInputTest {
 		assertEquals("previous complete file", Files.readString(target));
 		assertEquals(List.of("labels.tif"), list(dir).stream().filter(n -> n.contains("labels")).toList(), "no temporary file left");
 	}
+
+	/** Every outcome ends the process with its own code; an internal error prints its trace instead of leaving the process open. */
+	@Test
+	void everyOutcomeHasItsExitCode() {
+		java.io.ByteArrayOutputStream buf = new java.io.ByteArrayOutputStream();
+		java.io.PrintStream err = new java.io.PrintStream(buf, true, StandardCharsets.UTF_8);
+		assertEquals(0, Main.exitCode(() -> 0, err));
+		assertEquals(2, Main.exitCode(() -> { throw new CorralException("no boxes"); }, err));
+		assertEquals(130, Main.exitCode(() -> { throw new java.util.concurrent.CancellationException("learning cancelled at step 3"); }, err));
+		assertEquals(1, Main.exitCode(() -> { throw new ArrayIndexOutOfBoundsException("Index -1 out of bounds for length 0"); }, err));
+		String said = buf.toString(StandardCharsets.UTF_8);
+		assertTrue(said.contains("corral: error: no boxes"), said);
+		assertTrue(said.contains("learning cancelled at step 3; nothing written"), said);
+		assertTrue(said.contains("internal error") && said.contains("ArrayIndexOutOfBoundsException"), said);
+	}
 }
