@@ -143,11 +143,13 @@ public final class TiledPredictor implements AutoCloseable {
 	}
 
 	/**
-	 * Test-time flips: 1 = none, 2 = also mirrored left-right, 4 = also top-bottom and both; the
-	 * probabilities are averaged (common practice; it smooths the network's orientation bias).
+	 * Test-time flips: 1 = none, 2 = also mirrored left-right, 4 = also top-bottom and both, 8 = each
+	 * of the four also transposed (rows for columns: with the flips, every turn by 90 degrees and its
+	 * mirror image); the probabilities are averaged (common practice; it smooths the network's
+	 * orientation bias).
 	 */
 	public TiledPredictor optFlips(int n) {
-		if (n != 1 && n != 2 && n != 4) throw new IllegalArgumentException("flips must be 1, 2 or 4");
+		if (n != 1 && n != 2 && n != 4 && n != 8) throw new IllegalArgumentException("flips must be 1, 2, 4 or 8");
 		this.flips = n;
 		return this;
 	}
@@ -200,13 +202,19 @@ public final class TiledPredictor implements AutoCloseable {
 			int plane = iw * ih;
 			float[] p = flips == 1 ? network.probabilities(in, 1, ih, iw) : new float[no * plane];
 			if (flips > 1) {
-				float[] mirrored = new float[c * plane], back = new float[plane];
+				float[] mirrored = new float[c * plane], turned = new float[c * plane], back = new float[plane], untransposed = new float[plane];
 				for (int f = 0; f < flips; f++) {
-					for (int k = 0; k < c; k++) mirror(in, k * plane, mirrored, k * plane, iw, ih, f);
-					float[] pf = network.probabilities(mirrored, 1, ih, iw);
+					int m = f & 3;
+					boolean transposed = f >= 4;
+					for (int k = 0; k < c; k++) mirror(in, k * plane, mirrored, k * plane, iw, ih, m);
+					if (transposed) for (int k = 0; k < c; k++) transpose(mirrored, k * plane, turned, k * plane, iw, ih);
+					float[] pf = transposed ? network.probabilities(turned, 1, iw, ih) : network.probabilities(mirrored, 1, ih, iw);
 					if (f == 0 && first != null) keep(pf, first, tx - ox, ty - oy, tx, ty, cw, ch, iw, w);
 					for (int o = 0; o < no; o++) {
-						mirror(pf, o * plane, back, 0, iw, ih, f);
+						if (transposed) {
+							transpose(pf, o * plane, untransposed, 0, ih, iw); // back to ih rows of iw
+							mirror(untransposed, 0, back, 0, iw, ih, m);
+						} else mirror(pf, o * plane, back, 0, iw, ih, m);
 						for (int i = 0; i < plane; i++) p[o * plane + i] += back[i] / flips;
 					}
 				}
@@ -255,6 +263,12 @@ public final class TiledPredictor implements AutoCloseable {
 			if (!lr) System.arraycopy(src, s, dst, d, w);
 			else for (int x = 0; x < w; x++) dst[d + x] = src[s + w - 1 - x];
 		}
+	}
+
+	/** Copies one plane of {@code w x h} transposed: {@code h x w}, rows for columns. */
+	static void transpose(float[] src, int from, float[] dst, int to, int w, int h) {
+		for (int y = 0; y < h; y++)
+			for (int x = 0; x < w; x++) dst[to + x * h + y] = src[from + y * w + x];
 	}
 
 	@Override

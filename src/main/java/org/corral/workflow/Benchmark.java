@@ -85,7 +85,7 @@ public final class Benchmark {
 				PlanarImage im = ImageFiles.read(e.getKey());
 				int[] ref = ImageFiles.readLabels(labels.resolve(e.getKey().getFileName()), null);
 				long p0 = System.nanoTime();
-				float[] prob = runner.boxMaps(im, e.getValue(), runner.scaleFor(ModelRunner.medianSide(e.getValue())), null, ModelRunner.BOX_FLIPS)[0]; // as mask-boxes
+				float[] prob = runner.boxMaps(im, e.getValue(), runner.scaleFor(ModelRunner.medianSide(e.getValue())), null, ModelRunner.boxFlips())[0]; // as mask-boxes
 				predSeconds += (System.nanoTime() - p0) / 1e9;
 				pixels += im.pixels();
 				model.add(Scores.compare(BoxMasks.make(prob, im.width, im.height, e.getValue(), BoxMasks.Options.DEFAULTS.withMargin(settings.margin)).labels(), ref));

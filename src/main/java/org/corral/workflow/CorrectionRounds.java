@@ -148,7 +148,7 @@ public final class CorrectionRounds {
 					boolean learned = learn.containsKey(e.getKey());
 					PlanarImage im = ImageFiles.read(e.getKey());
 					List<Box> bs = e.getValue(); // masked as rectangles: the figures are the network's, not the outlines given
-					float[] prob = m.probability(im, m.scaleFor(ModelRunner.medianSide(bs)), null, ModelRunner.BOX_FLIPS);
+					float[] prob = m.probability(im, m.scaleFor(ModelRunner.medianSide(bs)), null, ModelRunner.boxFlips());
 					int[] lab = BoxMasks.make(prob, im.width, im.height, bs, BoxMasks.Options.DEFAULTS.withMargin(s.margin)).labels();
 					double[] d = dice(lab, refs.get(e.getKey()), im.width, im.height, bs);
 					if (learned && r == 0) first.put(e.getKey(), d);

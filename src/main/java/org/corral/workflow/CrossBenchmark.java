@@ -139,7 +139,7 @@ public final class CrossBenchmark {
 			int[] ref = ImageFiles.readLabels(labels.resolve(e.getKey().getFileName()), null);
 			long t0 = System.nanoTime();
 			// the boxes' maps as mask-boxes computes them (their tiles only; 8-bit where the model allows)
-			float[] prob = m.boxMaps(im, e.getValue(), m.scaleFor(ModelRunner.medianSide(e.getValue())), null, ModelRunner.BOX_FLIPS)[0];
+			float[] prob = m.boxMaps(im, e.getValue(), m.scaleFor(ModelRunner.medianSide(e.getValue())), null, ModelRunner.boxFlips())[0];
 			int[] lab = BoxMasks.make(prob, im.width, im.height, e.getValue(), BoxMasks.Options.DEFAULTS).labels();
 			boxS += (System.nanoTime() - t0) / 1e9;
 			boxes.add(Scores.compare(lab, ref));

@@ -131,7 +131,7 @@ public final class Jobs {
 			int[] zt = ImageFiles.zt(imp, p);
 			PlanarImage raw = ImageFiles.planes(imp, zt[0], zt[1]);
 			if (first == null) first = raw;
-			float[][] maps = model.boxMaps(raw, bs, model.scaleFor(ModelRunner.medianSide(bs)), null, ModelRunner.BOX_FLIPS);
+			float[][] maps = model.boxMaps(raw, bs, model.scaleFor(ModelRunner.medianSide(bs)), null, ModelRunner.boxFlips());
 			float[] prob = maps[0];
 			float[][] classMaps = model.classMaps(maps);
 			BoxMasks.Result r = BoxMasks.make(prob, w, h, bs, options);

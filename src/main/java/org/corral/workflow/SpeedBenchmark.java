@@ -97,13 +97,13 @@ public final class SpeedBenchmark {
 			int djlTile = TiledPredictor.defaultTile(model.net(), TiledPredictor.Engine.DJL);
 			Path tmp = Files.createTempDirectory("corral-speed");
 			float[] ranges = model.header().activationRanges;
-			try (TiledPredictor one = new TiledPredictor(model.net(), m); TiledPredictor four = new TiledPredictor(model.net(), m).optFlips(4).optActivationRanges(ranges);
-				TiledPredictor fourFloat = new TiledPredictor(model.net(), m).optFlips(4);
+			try (TiledPredictor one = new TiledPredictor(model.net(), m); TiledPredictor four = new TiledPredictor(model.net(), m).optFlips(ModelRunner.boxFlips()).optActivationRanges(ranges);
+				TiledPredictor fourFloat = new TiledPredictor(model.net(), m).optFlips(ModelRunner.boxFlips());
 				TiledPredictor djl = new TiledPredictor(model.net(), m, djlTile, 32).optEngine(TiledPredictor.Engine.DJL)) {
 				// whole images in float, box masks as masking runs them (8-bit where the model has ranges) and in float, and DJL
 				boolean int8 = four.network().engine().endsWith("8-bit");
-				Stage net = new Stage("network, 1 pass, tiles of " + one.tile()), flips = new Stage("network, 4 flips (box masks" + (int8 ? ", 8-bit)" : ")")),
-					flipsFloat = new Stage("network, 4 flips, float"), djlStage = new Stage("network, 1 pass, in DJL (tiles of " + djlTile + ")");
+				Stage net = new Stage("network, 1 pass, tiles of " + one.tile()), flips = new Stage("network, " + ModelRunner.boxFlips() + " flips (box masks" + (int8 ? ", 8-bit)" : ")")),
+					flipsFloat = new Stage("network, " + ModelRunner.boxFlips() + " flips, float"), djlStage = new Stage("network, 1 pass, in DJL (tiles of " + djlTile + ")");
 				out.append("network engine: " + one.network().engine() + " (compared: " + djl.network().engine() + ")\n");
 				// the engine prepares its kernels for each new tile shape on first use: one untimed pass each
 				for (Path f : files) {

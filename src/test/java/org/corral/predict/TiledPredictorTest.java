@@ -41,6 +41,50 @@ class TiledPredictorTest {
 	}
 
 	/**
+	 * Eight flips average the network over every turn and mirror image, so the maps of a transposed
+	 * image are the transposed maps (a wrong turn back breaks this), which four flips do not give.
+	 */
+	@Test
+	void eightFlipsAreAlikeForATransposedImage() {
+		try (NDManager m = NDManager.newBaseManager()) {
+			UNet net = seeded(new UNet(1, 16, 3), m, 11);
+			int w = 150, h = 97;
+			float[] v = new float[w * h], t = new float[w * h];
+			for (int i = 0; i < v.length; i++) v[i] = (float) Math.sin(i * 0.37) * 0.5f + (i % w) / (float) w;
+			TiledPredictor.transpose(v, 0, t, 0, w, h);
+			PlanarImage im = new PlanarImage(w, h, new float[][] {v}), tr = new PlanarImage(h, w, new float[][] {t});
+			for (int flips : new int[] {8, 4}) {
+				float[] p = new TiledPredictor(net, m, 1024, 32).optFlips(flips).predict(im, null);
+				float[] q = new TiledPredictor(net, m, 1024, 32).optFlips(flips).predict(tr, null);
+				float[] back = new float[w * h];
+				TiledPredictor.transpose(q, 0, back, 0, h, w);
+				double maxDiff = 0;
+				for (int i = 0; i < p.length; i++) maxDiff = Math.max(maxDiff, Math.abs(p[i] - back[i]));
+				if (flips == 8) assertEquals(0, maxDiff, 1e-4, "eight flips: the transposed image gives the transposed map");
+				else org.junit.jupiter.api.Assertions.assertTrue(maxDiff > 1e-3, "four flips are not symmetric under transposition (max difference " + maxDiff + ")");
+			}
+		}
+	}
+
+	/** Eight flips for box masks are a run's choice (-Dcorral.boxFlips=8); anything but 4 or 8 is refused by name. */
+	@Test
+	void boxFlipsComeFromTheRunsSetting() {
+		String before = System.getProperty("corral.boxFlips");
+		try {
+			System.clearProperty("corral.boxFlips");
+			assertEquals(ModelRunner.BOX_FLIPS, ModelRunner.boxFlips());
+			System.setProperty("corral.boxFlips", "8");
+			assertEquals(8, ModelRunner.boxFlips());
+			System.setProperty("corral.boxFlips", "5");
+			org.corral.CorralException e = org.junit.jupiter.api.Assertions.assertThrows(org.corral.CorralException.class, ModelRunner::boxFlips);
+			org.junit.jupiter.api.Assertions.assertTrue(e.getMessage().contains("corral.boxFlips must be 4 or 8"), e.getMessage());
+		} finally {
+			if (before == null) System.clearProperty("corral.boxFlips");
+			else System.setProperty("corral.boxFlips", before);
+		}
+	}
+
+	/**
 	 * The network with every parameter set from a seeded generator, so that it is the same whatever
 	 * ran before in this JVM (the engine's own initialisation was seen to leave NaN in a suite run);
 	 * weights at about the scale of He initialisation for 3x3x16 inputs, so that the maps do not
