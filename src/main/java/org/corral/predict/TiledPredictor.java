@@ -202,7 +202,9 @@ public final class TiledPredictor implements AutoCloseable {
 			int plane = iw * ih;
 			float[] p = flips == 1 ? network.probabilities(in, 1, ih, iw) : new float[no * plane];
 			if (flips > 1) {
-				float[] mirrored = new float[c * plane], turned = new float[c * plane], back = new float[plane], untransposed = new float[plane];
+				float[] mirrored = new float[c * plane], back = new float[plane];
+				// buffers of the transposed passes, only when there are any (8 flips)
+				float[] turned = flips > 4 ? new float[c * plane] : null, untransposed = flips > 4 ? new float[plane] : null;
 				for (int f = 0; f < flips; f++) {
 					int m = f & 3;
 					boolean transposed = f >= 4;
