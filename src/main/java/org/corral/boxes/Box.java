@@ -91,11 +91,6 @@ public record Box(int index, int x, int y, int width, int height, int slice, Str
 		return frame == null || frame.holds(px, py);
 	}
 
-	/** The same box of another class (null = none given). */
-	public Box withClass(String c) {
-		return new Box(index, x, y, width, height, slice, name, mask, c, frame);
-	}
-
 	public Box(int index, int x, int y, int width, int height) {
 		this(index, x, y, width, height, 0, "box-" + index);
 	}
@@ -109,11 +104,6 @@ public record Box(int index, int x, int y, int width, int height, int slice, Str
 	public boolean inMask(int px, int py) {
 		int lx = px - x, ly = py - y;
 		return mask != null && lx >= 0 && ly >= 0 && lx < width && ly < height && mask[ly * width + lx] != 0;
-	}
-
-	/** The same box under another index (its order in a list). */
-	public Box withIndex(int i) {
-		return new Box(i, x, y, width, height, slice, name, mask, className, frame);
 	}
 
 	/** The part of the mask inside the rectangle (nx, ny, nw, nh) of the image; null for a rectangle. */
