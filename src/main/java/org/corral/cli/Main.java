@@ -134,8 +134,7 @@ public final class Main {
 		Learner.Result r = Jobs.learn(boxed, boxes, s, model, printer(stop), note -> System.out.println("note: " + note));
 		System.out.printf(Locale.ROOT, "model written to %s (%s steps, %.3f s/step, constraints met %.3f)%n", model, r.header().counts.steps,
 			r.header().counts.secondsPerStep, r.header().scores.constraintsMet);
-		System.out.printf(Locale.ROOT, "whole images will be masked at probability %.2f in %d pass(es), chosen on these boxes%n", r.header().imageThreshold,
-			r.header().imageFlips);
+		System.out.printf(Locale.ROOT, "whole images will be masked at probability %.2f with %d test-time flip(s)%n", r.header().imageThreshold, r.header().imageFlips);
 		r.close();
 		return 0;
 	}

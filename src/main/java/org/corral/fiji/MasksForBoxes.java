@@ -59,8 +59,8 @@ public class MasksForBoxes implements Command {
 		if (model != null && model.getPath().length() > 0) {
 			try (ModelRunner m = ModelRunner.open(model.toPath())) {
 				if (adapt) { // continue learning on this image's boxes, then mask them
-					// the adapted model masks these boxes only and is not kept: how it would mask whole images is not chosen
-					try (Learner.Result r = adaptTo(image, f, m, false, "None of the boxes lies on " + image.getTitle())) {
+					// the adapted model masks these boxes only and is not kept
+					try (Learner.Result r = adaptTo(image, f, m, "None of the boxes lies on " + image.getTitle())) {
 						o = Jobs.maskBoxes(image, bs, new ModelRunner(r.header(), r.net(), r.manager()));
 					}
 				} else o = Jobs.maskBoxes(image, bs, m);
@@ -69,7 +69,6 @@ public class MasksForBoxes implements Command {
 			LearnSettings s = new LearnSettings();
 			s.steps = steps;
 			s.minutes = 0;
-			s.chooseWholeImageSettings = false; // masks these boxes only and is not kept
 			try (Learner.Result r = new Learner(s).learn(Jobs.trainingImages(image, image.getTitle(), bs, f.region(), ij.IJ::log), new ImageJProgress(false))) {
 				o = Jobs.maskBoxes(image, bs, new ModelRunner(r.header(), r.net(), r.manager()));
 			}
@@ -85,12 +84,11 @@ public class MasksForBoxes implements Command {
 	 * The model continued on the boxes {@code f} of {@code image}, by the rule of {@link Adaptation}
 	 * (shown in ImageJ's progress bar); {@code noBoxes} is the error when none lies on the image.
 	 */
-	static Learner.Result adaptTo(ImagePlus image, ImageJBoxes.Found f, ModelRunner m, boolean chooseWholeImage, String noBoxes) {
+	static Learner.Result adaptTo(ImagePlus image, ImageJBoxes.Found f, ModelRunner m, String noBoxes) {
 		List<TrainingImage> own = Jobs.trainingImages(image, image.getTitle(), f.boxes(), f.region(), ij.IJ::log);
 		int n = own.stream().mapToInt(t -> t.boxes().size()).sum();
 		if (n == 0) throw new CorralException(noBoxes);
 		LearnSettings s = Adaptation.settings(LearnFromBoxes.settings(SupervisionSettings.DEFAULT_BAND, 0, false), m, n, 0);
-		s.chooseWholeImageSettings = chooseWholeImage;
 		ij.IJ.log("Corral: learning from " + n + " boxes of " + image.getTitle() + ", " + s.steps + " steps");
 		return Adaptation.adapt(m, own, s, new ImageJProgress(false));
 	}

@@ -51,7 +51,7 @@ public class MasksForWholeImage implements Command {
 		Jobs.WholeImageOutcome o;
 		try (ModelRunner m = ModelRunner.open(model.toPath())) {
 			if (adapt) {
-				try (Learner.Result r = MasksForBoxes.adaptTo(image, ImageJBoxes.of(image), m, true,
+				try (Learner.Result r = MasksForBoxes.adaptTo(image, ImageJBoxes.of(image), m,
 					"No boxes on " + image.getTitle() + " to learn from: draw rectangles around some objects, or untick learning first");
 					ModelRunner adapted = new ModelRunner(r.header(), r.net(), r.manager())) {
 					ij.IJ.log("Corral: " + adapted.wholeImageSettings());

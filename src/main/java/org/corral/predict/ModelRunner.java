@@ -101,7 +101,7 @@ public final class ModelRunner implements AutoCloseable {
 	/**
 	 * Test-time flips for masks inside boxes: averaging the four mirrored predictions lifted the
 	 * per-object Dice on the held-out histology images from 0.887 to 0.894 (README, "How the defaults
-	 * were chosen"). Whole images use the model's own choice ({@link #imageFlips()}); one pass for
+	 * were chosen"). Whole images use the model's own setting ({@link #imageFlips()}); one pass for
 	 * models that have none.
 	 */
 	public static final int BOX_FLIPS = 4, IMAGE_FLIPS = 1;
@@ -120,7 +120,7 @@ public final class ModelRunner implements AutoCloseable {
 		return Integer.parseInt(v.trim());
 	}
 
-	/** Test-time flips for whole images: the model's choice ({@link ModelHeader#imageFlips}), {@link #IMAGE_FLIPS} when it has none. */
+	/** Test-time flips for whole images: the model's setting ({@link ModelHeader#imageFlips}), {@link #IMAGE_FLIPS} when it has none. */
 	public int imageFlips() {
 		int f = header.imageFlips;
 		return f == 1 || f == 2 || f == 4 ? f : IMAGE_FLIPS;
@@ -129,10 +129,10 @@ public final class ModelRunner implements AutoCloseable {
 	/** One line for the log: how this model masks whole images. */
 	public String wholeImageSettings() {
 		return String.format(java.util.Locale.ROOT, "whole images: objects at probability %.2f, %d network pass(es) per tile%s", imageThreshold(), imageFlips(),
-			imageFlips() > 1 ? " (test-time flips, which the model chose on its boxes)" : "");
+			imageFlips() > 1 ? " (test-time flips)" : "");
 	}
 
-	/** Probability threshold of whole-image objects: the model's choice ({@link ModelHeader#imageThreshold}), 0.5 when it has none. */
+	/** Probability threshold of whole-image objects: the model's setting ({@link ModelHeader#imageThreshold}), 0.5 when it has none. */
 	public double imageThreshold() {
 		double t = header.imageThreshold;
 		return t > 0 && t < 1 ? t : org.corral.instances.ImageMasks.THRESHOLD;

@@ -170,20 +170,10 @@ public final class TiledPredictor implements AutoCloseable {
 	 * tiles are laid out as for the whole image, so what is computed equals the whole-image maps.
 	 */
 	public float[][] predictMaps(PlanarImage im, java.util.List<int[]> regions, BooleanSupplier cancelled) {
-		return predictMaps(im, regions, null, cancelled);
+		return tiles(im, regions, cancelled);
 	}
 
-	/**
-	 * With flips: {the maps of the first, unmirrored pass alone (what one pass gives), the maps
-	 * averaged over every flip}, for the price of the flips.
-	 */
-	public float[][][] predictMapsFirstAndAll(PlanarImage im, BooleanSupplier cancelled) {
-		float[][] first = new float[net.outputs()][im.width * im.height];
-		float[][] all = predictMaps(im, null, first, cancelled);
-		return new float[][][] {flips == 1 ? all : first, all};
-	}
-
-	private float[][] predictMaps(PlanarImage im, java.util.List<int[]> regions, float[][] first, BooleanSupplier cancelled) {
+	private float[][] tiles(PlanarImage im, java.util.List<int[]> regions, BooleanSupplier cancelled) {
 		if (im.nChannels() != net.inChannels())
 			throw new CorralException("The model expects " + net.inChannels() + " channel(s), the image has " + im.nChannels());
 		int w = im.width, h = im.height;
@@ -211,7 +201,6 @@ public final class TiledPredictor implements AutoCloseable {
 					for (int k = 0; k < c; k++) mirror(in, k * plane, mirrored, k * plane, iw, ih, m);
 					if (transposed) for (int k = 0; k < c; k++) transpose(mirrored, k * plane, turned, k * plane, iw, ih);
 					float[] pf = transposed ? network.probabilities(turned, 1, iw, ih) : network.probabilities(mirrored, 1, ih, iw);
-					if (f == 0 && first != null) keep(pf, first, tx - ox, ty - oy, tx, ty, cw, ch, iw, w);
 					for (int o = 0; o < no; o++) {
 						if (transposed) {
 							transpose(pf, o * plane, untransposed, 0, ih, iw); // back to ih rows of iw

@@ -78,12 +78,6 @@ public final class LearnSettings {
 	 * from settled box masks and switches at its own mask-target step.
 	 */
 	public int heavyInstanceFrom = 240;
-	/**
-	 * When learning ends, let the model choose how it masks whole images (threshold and flips, on its
-	 * own learning images: four network passes over up to 2 MP, 3-11 s on 2 cores). Off where the
-	 * model will only ever mask boxes: mask-boxes adapting without keeping the adapted model.
-	 */
-	public boolean chooseWholeImageSettings = true;
 	/** Print/notify progress every this many steps. */
 	public int reportEvery = 10;
 
@@ -135,7 +129,6 @@ public final class LearnSettings {
 		c.unknownGround = unknownGround;
 		c.instanceMap = instanceMap;
 		c.heavyInstanceFrom = heavyInstanceFrom;
-		c.chooseWholeImageSettings = chooseWholeImageSettings;
 		return c;
 	}
 

@@ -136,7 +136,6 @@ public final class Learner {
 			ModelHeader h = header(prep, run, outputs, nClasses);
 			h.activationRanges = org.corral.predict.ActivationRanges.measure(net, trainer.getManager(),
 				prep.images().stream().map(CropSampler.Prepared::image).toList());
-			if (s.chooseWholeImageSettings) wholeImageSettings(net, prep.images(), h, trainer.getManager(), progress);
 			// keep the parameters alive after the trainer closes: move them to a manager we hand out
 			NDManager keep = NDManager.newBaseManager();
 			for (var pair : net.getParameters()) pair.getValue().getArray().attach(keep);
@@ -284,6 +283,8 @@ public final class Learner {
 		h.backgroundLevel = backgroundLevel(prep.images());
 		if (from != null) h.noiseLevel = Math.max(h.noiseLevel, from.header().noiseLevel);
 		h.objectSize = from != null ? from.header().objectSize : median(prep.sides());
+		h.imageThreshold = ModelHeader.WHOLE_IMAGE_THRESHOLD;
+		h.imageFlips = ModelHeader.WHOLE_IMAGE_FLIPS;
 		// the pixel size is remembered only when every learning image is calibrated alike
 		List<Double> microns = prep.microns();
 		if (from != null) {
@@ -361,43 +362,6 @@ public final class Learner {
 		}
 	}
 
-	/**
-	 * Learning images (in order) whose pixels count for {@link #wholeImageSettings}, at most this many
-	 * megapixels (but at least one image): the choice costs four network passes over them.
-	 */
-	static final double SETTINGS_MEGAPIXELS = 2.0;
-
-	/** The header's training key of the one-pass figures behind the whole-image choice (present when it was made). */
-	public static final String WHOLE_IMAGE_ONE_PASS = "wholeImageMeanAPOnePass";
-
-	/**
-	 * Chooses how the model masks whole images ({@link org.corral.instances.WholeImageSettings}) on the
-	 * images it learned from, as learning sees them, against the box masks of their boxes; records the
-	 * choice and every candidate's figure in the header.
-	 */
-	private void wholeImageSettings(UNet net, List<CropSampler.Prepared> prepared, ModelHeader h, NDManager parent, Progress progress) {
-		long t0 = System.nanoTime();
-		List<org.corral.instances.WholeImageSettings.Sample> samples = new ArrayList<>();
-		try (NDManager m = parent.newSubManager();
-			org.corral.predict.TiledPredictor four = new org.corral.predict.TiledPredictor(net, m).optFlips(4)) {
-			double mp = 0;
-			for (CropSampler.Prepared p : prepared) {
-				if (mp >= SETTINGS_MEGAPIXELS) break;
-				PlanarImage im = p.image();
-				mp += im.width * (double) im.height / 1e6;
-				float[][][] maps = four.predictMapsFirstAndAll(im, progress::cancelled);
-				samples.add(new org.corral.instances.WholeImageSettings.Sample(maps[0], maps[1], im.width, im.height, p.sup().boxes,
-					boxMaskLabels(maps[1][0], im, p.sup())));
-			}
-		}
-		var c = org.corral.instances.WholeImageSettings.choose(samples, h.objectSize);
-		h.imageThreshold = c.threshold();
-		h.imageFlips = c.flips();
-		h.training.put(WHOLE_IMAGE_ONE_PASS, round4(c.onePass()));
-		h.training.put("wholeImageMeanAPFourFlips", round4(c.fourFlips()));
-		h.training.put("wholeImageSettingsSeconds", Math.round((System.nanoTime() - t0) / 1e7) / 100.0);
-	}
-
 	/** The noise of the noisiest channel of the learning images, as learning sees them (normalised). */
 	static double noiseLevel(List<CropSampler.Prepared> prepared) {
 		double most = 0;
@@ -418,12 +382,6 @@ public final class Learner {
 			level[c] = medians[medians.length / 2];
 		}
 		return level;
-	}
-
-	private static double[] round4(double[] a) {
-		double[] r = new double[a.length];
-		for (int i = 0; i < a.length; i++) r[i] = Math.round(a[i] * 1e4) / 1e4;
-		return r;
 	}
 
 	/** The network's masks of the boxes, fitted to them; an outlined object is its outline. */

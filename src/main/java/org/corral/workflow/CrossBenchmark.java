@@ -172,7 +172,6 @@ public final class CrossBenchmark {
 		List<TrainingImage> own = Jobs.trainingImages(boxed);
 		int nBoxes = own.stream().mapToInt(t -> t.boxes().size()).sum();
 		LearnSettings as = Adaptation.settings(s, base, nBoxes, adaptSteps);
-		as.chooseWholeImageSettings = true; // these models mask whole images
 		log.accept("  half boxed: adapting " + as.steps + " steps on the " + nBoxes + " boxes of " + boxed.size() + " image(s), masking the other " + rest.size() + " whole");
 		long t0 = System.nanoTime();
 		try (Learner.Result r = Adaptation.adapt(base, own, as, quiet(log)); ModelRunner adapted = new ModelRunner(r.header(), r.net(), r.manager())) {

@@ -205,8 +205,8 @@ public final class Jobs {
 		ModelRunner base = modelFile == null ? null : ModelRunner.open(modelFile);
 		try {
 			RunRecord record = new RunRecord(modelFile, plan.adapt(), base == null);
-			// a model that is not kept masks only these boxes: how it would mask whole images is not chosen
-			try (Learner.Result adapted = plan.adapt() ? adapt(base, boxed, plan, plan.saveTo() != null, record, progress, log) : null) {
+			// a model that is not kept masks only these boxes
+			try (Learner.Result adapted = plan.adapt() ? adapt(base, boxed, plan, record, progress, log) : null) {
 				ModelRunner own = adapted == null ? null : new ModelRunner(adapted.header(), adapted.net(), adapted.manager());
 				try {
 					FolderRun.Report r = maskBoxes(allBoxed, boxFile, own == null ? base : own, BoxMasks.Options.DEFAULTS.withMargin(plan.settings().margin), share, outDir,
@@ -225,17 +225,14 @@ public final class Jobs {
 	/**
 	 * Continued learning on the boxes of {@code boxed} (from scratch when {@code base} is null) as
 	 * {@code plan} says, noted in {@code record}; saves the model when the plan asks.
-	 * {@code chooseWholeImage}: let the model choose how it masks whole images (only worth its network
-	 * passes when whole images will be masked with it).
 	 */
-	static Learner.Result adapt(ModelRunner base, Map<Path, List<Box>> boxed, AdaptPlan plan, boolean chooseWholeImage, RunRecord record, Progress progress,
+	static Learner.Result adapt(ModelRunner base, Map<Path, List<Box>> boxed, AdaptPlan plan, RunRecord record, Progress progress,
 		Consumer<String> log) {
 		List<TrainingImage> images = trainingImages(boxed, note -> log.accept("note: " + note));
 		int nBoxes = images.stream().mapToInt(t -> t.boxes().size()).sum();
 		if (nBoxes == 0) throw new CorralException("None of the boxes lies inside its image: nothing to learn from");
 		LearnSettings s = base == null ? plan.settings().copy() : Adaptation.settings(plan.settings(), base, nBoxes, plan.steps());
 		if (base == null && plan.steps() > 0) s.steps = plan.steps();
-		s.chooseWholeImageSettings = chooseWholeImage;
 		log.accept(base == null ? "learning from the " + nBoxes + " boxes of these " + images.size() + " image(s), " + s.steps + " steps"
 			: "adapting the model to the " + nBoxes + " boxes of these " + images.size() + " image(s), " + s.steps + " steps (--no-adapt to skip)");
 		long t0 = System.nanoTime();
@@ -283,7 +280,7 @@ public final class Jobs {
 		ModelRunner base = modelFile == null ? null : ModelRunner.open(modelFile);
 		try {
 			RunRecord record = new RunRecord(modelFile, true, base == null);
-			try (Learner.Result adapted = adapt(base, boxed, plan, true, record, progress, log);
+			try (Learner.Result adapted = adapt(base, boxed, plan, record, progress, log);
 				ModelRunner used = new ModelRunner(adapted.header(), adapted.net(), adapted.manager())) {
 				log.accept(used.wholeImageSettings());
 				FolderRun.Report r = maskImages(images, Share.ALL, used, outDir, objectSize, propose, cancelled, log);
@@ -319,8 +316,6 @@ public final class Jobs {
 		Integer adaptSteps, adaptBoxes, adaptImages;
 		Long seed;
 		Double adaptSeconds, constraintsMet;
-		/** Whether the adapted model chose how it masks whole images (only when it is kept: --save-adapted). */
-		Boolean wholeImageSettingsChosen;
 
 		RunRecord(Path model, boolean adapt, boolean fromScratch) {
 			this.model = model == null ? null : model.toAbsolutePath().toString();
@@ -336,7 +331,6 @@ public final class Jobs {
 			seed = s.seed;
 			adaptSeconds = seconds;
 			constraintsMet = Double.isNaN(h.scores.constraintsMet) ? null : h.scores.constraintsMet;
-			wholeImageSettingsChosen = h.training.containsKey(org.corral.train.Learner.WHOLE_IMAGE_ONE_PASS);
 		}
 
 		String json() {

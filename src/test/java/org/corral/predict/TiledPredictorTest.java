@@ -104,31 +104,6 @@ class TiledPredictorTest {
 		return net;
 	}
 
-	/** With flips, the first (unmirrored) pass is kept apart and equals a run without flips, tile for tile. */
-	@Test
-	void theFirstOfTheFlipsIsOnePass() {
-		try (NDManager m = NDManager.newBaseManager()) {
-			UNet net = seeded(new UNet(1, 16, 3, 2), m, 11);
-			int w = 90, h = 70;
-			float[] v = new float[w * h];
-			for (int i = 0; i < v.length; i++) v[i] = (float) Math.sin(i * 0.29) * 0.5f + (i / w) / (float) h;
-			PlanarImage im = new PlanarImage(w, h, new float[][] {v});
-			float[][] one = new TiledPredictor(net, m, 40, 32).predictMaps(im, null);
-			float[][] four = new TiledPredictor(net, m, 40, 32).optFlips(4).predictMaps(im, null);
-			float[][][] both = new TiledPredictor(net, m, 40, 32).optFlips(4).predictMapsFirstAndAll(im, null);
-			assertEquals(2, both[0].length);
-			double flipDiff = 0;
-			for (int o = 0; o < 2; o++) {
-				org.junit.jupiter.api.Assertions.assertArrayEquals(one[o], both[0][o], 1e-6f, "map " + o + ": the first pass alone");
-				org.junit.jupiter.api.Assertions.assertArrayEquals(four[o], both[1][o], 1e-6f, "map " + o + ": all four flips");
-				for (int i = 0; i < w * h; i++) flipDiff = Math.max(flipDiff, Math.abs(one[o][i] - four[o][i]));
-			}
-			double lo = 1, hi = 0;
-			for (float q : one[0]) { lo = Math.min(lo, q); hi = Math.max(hi, q); }
-			org.junit.jupiter.api.Assertions.assertTrue(flipDiff > 1e-3, "the flips change the maps of this network: " + flipDiff + " range " + lo + " " + hi);
-		}
-	}
-
 	@Test
 	void defaultTilesKeepTheWidestBufferWithin32MiB() {
 		UNet net = new UNet(1, 16, 4);

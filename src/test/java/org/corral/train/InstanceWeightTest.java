@@ -58,7 +58,6 @@ class InstanceWeightTest {
 		s.reportEvery = 1;
 		s.batch = 2;
 		s.scaleJitter = 0;
-		s.chooseWholeImageSettings = false;
 		s.weights = new LossWeights(1, 1, 1, 5);
 		return s;
 	}

@@ -53,7 +53,6 @@ class ScaleJitterTest {
 			s.steps = 3;
 			s.minutes = 0;
 			s.base = 4;
-			s.chooseWholeImageSettings = false;
 			s.scaleJitter = k == 0 ? 0 : 0.3;
 			try (Learner.Result r = new Learner(s).learn(Jobs.trainingImages(first), Progress.silent())) {
 				assertEquals(1, r.header().counts.images, "the resized copies are not counted as images");

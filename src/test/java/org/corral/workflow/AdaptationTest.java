@@ -13,6 +13,7 @@ import org.corral.ReferenceData;
 import org.corral.cli.Main;
 import org.corral.io.ImageFiles;
 import org.corral.model.ModelFile;
+import org.corral.model.ModelHeader;
 import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.io.TempDir;
 
@@ -48,8 +49,6 @@ class AdaptationTest {
 			assertTrue(record.contains("\"model\": \"" + model.toAbsolutePath()), record);
 			assertTrue(record.contains("\"adapt\": " + (i < 2)), record);
 			if (i < 2) assertTrue(record.contains("\"adaptSteps\": 15"), record);
-			// a kept adapted model chooses how it masks whole images; one that only masks these boxes skips it
-			if (i < 2) assertTrue(record.contains("\"wholeImageSettingsChosen\": " + (i == 0)), record);
 		}
 		assertArrayEquals(runs[0], runs[1], "same boxes, model, seed and steps: the same label image");
 		assertFalse(java.util.Arrays.equals(runs[0], runs[2]), "adapting changed the masks");
@@ -60,18 +59,17 @@ class AdaptationTest {
 			assertEquals(14, base.length, "learning records one activation range per 3x3 convolution, for 8-bit masking");
 			assertEquals(14, adapted.length);
 			assertFalse(java.util.Arrays.equals(base, adapted), "the adapted network's ranges are measured again");
-			// how it masks whole images is chosen again on the boxes it adapted to, and the figures behind the choice kept
+			// every model learned now masks whole images alike: four flips at 0.45, written in its file
 			var h = m.header();
-			assertTrue(java.util.Arrays.stream(org.corral.instances.WholeImageSettings.THRESHOLDS).anyMatch(t -> t == h.imageThreshold), "threshold " + h.imageThreshold);
-			assertTrue(h.imageFlips == 1 || h.imageFlips == 4, "flips " + h.imageFlips);
+			assertEquals(ModelHeader.WHOLE_IMAGE_THRESHOLD, h.imageThreshold, "threshold");
+			assertEquals(ModelHeader.WHOLE_IMAGE_FLIPS, h.imageFlips, "flips");
+			assertEquals(0.45, ModelHeader.WHOLE_IMAGE_THRESHOLD);
+			assertEquals(4, ModelHeader.WHOLE_IMAGE_FLIPS);
 			// the noise and background of the learning images, for nearly empty fields: never below the start's
 			var start = ModelFile.readHeader(model);
 			assertTrue(start.noiseLevel > 0 && h.noiseLevel >= start.noiseLevel, "noise level " + start.noiseLevel + " -> " + h.noiseLevel);
 			assertEquals(1, h.backgroundLevel.length);
 			assertTrue(h.backgroundLevel[0] >= 0 && h.backgroundLevel[0] < 0.2, "a dark fluorescence background: " + h.backgroundLevel[0]);
-			for (String k : List.of("wholeImageMeanAPOnePass", "wholeImageMeanAPFourFlips")) {
-				assertTrue(h.training.get(k) instanceof List<?> l && l.size() == 4 && l.stream().allMatch(x -> ((Number) x).doubleValue() > 0), k + ": " + h.training.get(k));
-			}
 		}
 	}
 
@@ -103,7 +101,7 @@ class AdaptationTest {
 		}
 		assertTrue(said.toString(java.nio.charset.StandardCharsets.UTF_8).contains("note: 3 image(s) without boxes are masked with the model adapted"), said.toString());
 		String record = Files.readString(out.resolve(OutputNames.RUN_RECORD));
-		for (String field : List.of("\"adapt\": true", "\"adaptSteps\": 12", "\"adaptBoxes\": 8", "\"adaptImages\": 1", "\"wholeImageSettingsChosen\": true",
+		for (String field : List.of("\"adapt\": true", "\"adaptSteps\": 12", "\"adaptBoxes\": 8", "\"adaptImages\": 1",
 			"\"savedTo\": \"" + saved))
 			assertTrue(record.contains(field), field + " in " + record);
 		for (int k = 1; k <= 4; k++) assertTrue(Files.isRegularFile(out.resolve("seedcoat-0" + k + ".labels.tif")), "every image is masked, boxed or not: " + k);

@@ -88,7 +88,6 @@ class CorrectionsTest {
 		LearnSettings s = new LearnSettings();
 		s.steps = 150;
 		s.minutes = 0;
-		s.chooseWholeImageSettings = false; // box masks only: how whole images would be masked is not needed
 		List<CorrectionRounds.Round> rounds = CorrectionRounds.run(set, 5, 1, 0.1, s, System.out::println);
 		CorrectionRounds.Round before = rounds.get(0), after = rounds.get(1);
 		assertTrue(after.outlines() >= 5, "a tenth of the learning images' cells outlined: " + after.outlines());

@@ -66,7 +66,6 @@ class CrossCollectionTest {
 		LearnSettings s = new LearnSettings();
 		s.steps = STEPS;
 		s.minutes = 0;
-		s.chooseWholeImageSettings = false; // box masks only: how whole images would be masked is not needed
 		Scores.Tally adapted = new Scores.Tally(), ellipse = new Scores.Tally();
 		Learner.Result base = MODELS.computeIfAbsent(p.learnOn(), k -> new Learner(s).learn(Jobs.trainingImages(learn), Progress.silent()));
 		{

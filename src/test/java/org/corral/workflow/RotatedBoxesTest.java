@@ -96,7 +96,6 @@ class RotatedBoxesTest {
 		LearnSettings s = new LearnSettings();
 		s.steps = 150;
 		s.minutes = 0;
-		s.chooseWholeImageSettings = false; // box masks only: how whole images would be masked is not needed
 		Path model = dir.resolve(boxFile + ".zip");
 		Jobs.learn(learn, null, s, model, Progress.silent(), n -> {}).close();
 		try (ModelRunner m = ModelRunner.open(model)) {
