@@ -56,7 +56,8 @@ public final class ModelHeader {
 	 */
 	public float[] activationRanges;
 	/**
-	 * How whole images are masked ({@link #WHOLE_IMAGE_THRESHOLD}, {@link #WHOLE_IMAGE_FLIPS}): the probability threshold of objects and the test-time flips (1 or 4). Models of earlier versions
+	 * How whole images are masked ({@link #WHOLE_IMAGE_THRESHOLD}, {@link #WHOLE_IMAGE_FLIPS}): the
+	 * probability threshold of objects and the test-time flips (1 or 4). Models of earlier versions
 	 * lack them and mask at 0.5 in one pass; models of the versions that chose them on their own
 	 * learning images keep their choice.
 	 */
