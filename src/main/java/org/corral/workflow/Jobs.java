@@ -205,7 +205,6 @@ public final class Jobs {
 		ModelRunner base = modelFile == null ? null : ModelRunner.open(modelFile);
 		try {
 			RunRecord record = new RunRecord(modelFile, plan.adapt(), base == null);
-			// a model that is not kept masks only these boxes
 			try (Learner.Result adapted = plan.adapt() ? adapt(base, boxed, plan, record, progress, log) : null) {
 				ModelRunner own = adapted == null ? null : new ModelRunner(adapted.header(), adapted.net(), adapted.manager());
 				try {
